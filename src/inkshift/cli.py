@@ -44,6 +44,11 @@ def _root(
     """Check how a chart drawn on an RGB screen will come out in print."""
 
 
+# Command modules register themselves on the apps above when imported.
+from inkshift.commands import profiles_show  # noqa: E402,F401
+from inkshift.commands import profiles_build  # noqa: E402,F401
+
+
 def main() -> None:
     """Console entry point: run the app, turning project errors into exit 2."""
     try:
