@@ -1,0 +1,89 @@
+"""Writing output files so that a failure never leaves a partial file behind.
+
+Every file the project writes goes to a temporary name in the target folder
+and is renamed into place (``os.replace`` is atomic on POSIX and Windows when
+both names are on the same file system).
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Iterator
+
+from PIL import Image
+
+from inkshift.errors import InputError
+
+__all__ = ["atomic_path", "write_bytes_atomic", "write_text_atomic", "save_image_atomic", "ensure_writable_dir"]
+
+
+@contextmanager
+def atomic_path(path: str | Path) -> Iterator[Path]:
+    """Yield a temporary path beside ``path``; rename it to ``path`` if the block succeeds."""
+    path = Path(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    os.close(fd)
+    tmp_path = Path(tmp)
+    try:
+        yield tmp_path
+        os.replace(tmp_path, path)
+    except BaseException:
+        tmp_path.unlink(missing_ok=True)
+        raise
+
+
+def write_bytes_atomic(path: str | Path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` atomically and return the path."""
+    with atomic_path(path) as tmp:
+        tmp.write_bytes(data)
+    return Path(path)
+
+
+def write_text_atomic(path: str | Path, text: str) -> Path:
+    """Write UTF-8 ``text`` to ``path`` atomically and return the path."""
+    return write_bytes_atomic(path, text.encode("utf-8"))
+
+
+def save_image_atomic(image: Image.Image, path: str | Path, format: str = "PNG", **params: object) -> Path:
+    """Save a Pillow image to ``path`` atomically (format given explicitly) and return the path."""
+    with atomic_path(path) as tmp:
+        image.save(tmp, format=format, **params)
+    return Path(path)
+
+
+def ensure_writable_dir(path: str | Path) -> tuple[Path, bool]:
+    """Make sure ``path`` is a folder we can write to; create it if needed.
+
+    Returns the folder and whether it was created here (so a caller that
+    fails later can remove it again). Raises :class:`InputError` with one
+    line when the folder cannot be used.
+    """
+    path = Path(path)
+    created = False
+    if path.exists() and not path.is_dir():
+        raise InputError(f"{path}: output path exists and is not a folder")
+    if not path.exists():
+        try:
+            path.mkdir(parents=True)
+            created = True
+        except OSError as exc:
+            raise InputError(f"{path}: cannot create output folder ({exc.strerror or exc})") from None
+    try:
+        fd, probe = tempfile.mkstemp(prefix=".inkshift-probe.", dir=path)
+        os.close(fd)
+        os.unlink(probe)
+    except OSError as exc:
+        if created:
+            _remove_empty(path)
+        raise InputError(f"{path}: output folder is not writable ({exc.strerror or exc})") from None
+    return path, created
+
+
+def _remove_empty(path: Path) -> None:
+    try:
+        path.rmdir()
+    except OSError:
+        pass
