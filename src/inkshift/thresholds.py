@@ -1,0 +1,60 @@
+"""The numbers that decide a verdict, each with where it comes from.
+
+CIEDE2000 was scaled so that about one unit is a just-noticeable difference
+for large uniform patches viewed side by side (CIE 142-2001; Luo, Cui & Rigg
+2001). Chart marks are small, thin and seen apart, so the thresholds that
+matter for charts are larger than that. Every value can be overridden on the
+command line and through :class:`Thresholds` in the Python API.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "SHIFT_DELTA_E",
+    "DISTINCT_DELTA_E",
+    "MERGE_DELTA_E",
+    "SEPARATION_LOSS_RATIO",
+    "OUT_OF_GAMUT_DELTA_E",
+    "Thresholds",
+]
+
+SHIFT_DELTA_E = 3.0
+"""ΔE00 from screen to print above which a palette colour 'shifts noticeably'.
+Common practice: print buyers accept about 2-3 ΔE00 between proof and press for
+flat colours; 3 marks the point where a reader comparing screen and print sees
+a different colour."""
+
+DISTINCT_DELTA_E = 10.0
+"""ΔE00 on screen above which two palette colours are 'clearly distinct'.
+Common practice for category colours of small chart marks, which need well
+over the patch JND to be told apart at a glance (from memory: studies of mark
+colour difference in visualisation put the 50 %-discrimination point for thin
+marks around 5-10 ΔE)."""
+
+MERGE_DELTA_E = 5.0
+"""ΔE00 in print below which two clearly distinct screen colours 'merge'.
+Common practice: under about 5 ΔE00 two category colours on small marks are
+easily confused (from memory, same studies as DISTINCT_DELTA_E)."""
+
+SEPARATION_LOSS_RATIO = 0.5
+"""A pair that stays above MERGE_DELTA_E but keeps less than this share of its
+screen ΔE00 in print is reported as losing separation (common practice)."""
+
+OUT_OF_GAMUT_DELTA_E = 2.0
+"""A colour whose relative colorimetric round trip (Lab -> B2A1 -> A2B1) through
+the output profile misses by more than this ΔE00 is out of gamut. Common
+practice: twice the JND leaves room for the profile's own table precision
+(the shipped profiles round-trip in-gamut colours at p95 <= 1 ΔE00)."""
+
+
+@dataclass(frozen=True)
+class Thresholds:
+    """The verdict thresholds of one check, defaulting to the constants above."""
+
+    shift: float = SHIFT_DELTA_E
+    distinct: float = DISTINCT_DELTA_E
+    merge: float = MERGE_DELTA_E
+    separation_loss: float = SEPARATION_LOSS_RATIO
+    out_of_gamut: float = OUT_OF_GAMUT_DELTA_E
