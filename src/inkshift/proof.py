@@ -1,0 +1,152 @@
+"""One soft proof: colours in, per-colour screen and print colorimetry out.
+
+The data flow follows DESIGN.md. LittleCMS (through :mod:`inkshift.icc.cms`)
+decides the separation, because that is what a print workflow sends to the
+press; the project's own float evaluator (:mod:`inkshift.icc.evaluate`) turns
+the screen values and the separated device values into CIELAB, because
+LittleCMS's 8-bit Lab is too coarse for differences of one or two ΔE00.
+Everything here runs once per unique colour; callers map results back to
+pixels with :func:`inkshift.chart.unique.expand`.
+
+View conditions
+---------------
+Screen colours are media-relative to the source profile (the display white
+is L* = 100). Print colours are media-relative to the paper (bare paper is
+L* = 100) unless ``paper=True``, which gives ICC-absolute colorimetry: the
+print as it looks on its paper, compared with the screen white. Absolute
+colorimetric intent implies the paper view.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+from numpy.typing import NDArray
+
+from inkshift.color.difference import delta_e_2000
+from inkshift.errors import ProfileError
+from inkshift.icc.cms import srgb_profile_bytes, transform_colors
+from inkshift.icc.evaluate import device_to_lab, lab_to_device
+from inkshift.icc.intent import Intent
+from inkshift.icc.read import Profile, read_profile
+
+__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "PILLOW_MODES", "check_output_profile"]
+
+PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
+"""Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
+
+
+@dataclass(frozen=True)
+class ColorProof:
+    """Per-colour results of a soft proof (arrays share their first axis).
+
+    Attributes
+    ----------
+    screen_lab
+        CIELAB (D50) of each colour on screen, media-relative to the source.
+    device
+        The separation: 8-bit output device values (for CMYK, C, M, Y, K).
+    print_lab
+        CIELAB (D50) of the printed colour (see the module notes on views).
+    delta_e
+        CIEDE2000 between ``screen_lab`` and ``print_lab``.
+    out_of_gamut
+        True where the relative colorimetric round trip through the output
+        profile misses the screen colour by more than the tolerance given.
+    roundtrip_delta_e
+        The size of that miss, ΔE00.
+    print_rgb
+        8-bit sRGB showing the printed colour on screen.
+    """
+
+    screen_lab: NDArray[np.float64]
+    device: NDArray[np.uint8]
+    print_lab: NDArray[np.float64]
+    delta_e: NDArray[np.float64]
+    out_of_gamut: NDArray[np.bool_]
+    roundtrip_delta_e: NDArray[np.float64]
+    print_rgb: NDArray[np.uint8]
+
+
+@lru_cache(maxsize=1)
+def srgb_profile() -> Profile:
+    """Return LittleCMS's built-in sRGB profile read by the project's reader."""
+    return read_profile(srgb_profile_bytes(), name="sRGB (LittleCMS built-in)")
+
+
+def lab_to_srgb8(lab: NDArray[np.float64]) -> NDArray[np.uint8]:
+    """Return 8-bit sRGB showing CIELAB (D50) colours, clipped to the sRGB gamut."""
+    rgb = lab_to_device(srgb_profile(), lab, Intent.RELATIVE)
+    return np.clip(np.rint(rgb * 255.0), 0, 255).astype(np.uint8)
+
+
+def check_output_profile(profile: Profile) -> None:
+    """Raise :class:`ProfileError` unless ``profile`` can serve as a print output profile."""
+    if profile.device_class != "prtr":
+        raise ProfileError(
+            profile.source,
+            f"is a '{profile.device_class}' class profile, not an output (printer) profile",
+        )
+    if profile.color_space not in PILLOW_MODES:
+        raise ProfileError(profile.source, f"output colour space {profile.color_space} is not supported (use CMYK, gray or RGB)")
+    if not any(k.startswith("B2A") for k in profile.luts) and profile.trcs is None:
+        raise ProfileError(profile.source, "has no B2A table, so colours cannot be separated for it")
+
+
+def proof_colors(
+    colors: NDArray[np.uint8],
+    source: Profile,
+    output: Profile,
+    intent: Intent = Intent.RELATIVE,
+    bpc: bool = True,
+    paper: bool = False,
+    out_of_gamut_delta_e: float = 2.0,
+) -> ColorProof:
+    """Soft-proof 8-bit ``colors`` in ``source``'s colour space on ``output``.
+
+    Parameters
+    ----------
+    colors
+        ``(N, C)`` uint8 device values of the source (RGB, gray or CMYK).
+    source, output
+        The image's profile and the print output profile.
+    intent, bpc
+        Rendering intent and black point compensation of the separation.
+    paper
+        Give print colours ICC-absolute (on the paper) instead of
+        media-relative.
+    out_of_gamut_delta_e
+        Round-trip tolerance for the out-of-gamut flag (ΔE00).
+
+    A CMYK source whose profile is the output profile itself is proofed as it
+    stands: the device values are the pixels (no separation).
+    """
+    colors = np.asarray(colors, dtype=np.uint8)
+    in_mode = PILLOW_MODES.get(source.color_space)
+    if in_mode is None:
+        raise ProfileError(source.source, f"image colour space {source.color_space} is not supported")
+    check_output_profile(output)
+    out_mode = PILLOW_MODES[output.color_space]
+
+    screen_lab = device_to_lab(source, colors / 255.0, Intent.RELATIVE)
+    if source.color_space == output.color_space and source.data == output.data:
+        device = colors.copy()
+    else:
+        device = transform_colors(colors, source, output, in_mode, out_mode, intent, bpc)
+    view = Intent.ABSOLUTE if (paper or intent is Intent.ABSOLUTE) else Intent.RELATIVE
+    print_lab = device_to_lab(output, device / 255.0, view)
+    delta_e = delta_e_2000(screen_lab, print_lab)
+
+    reached = device_to_lab(output, lab_to_device(output, screen_lab, Intent.RELATIVE), Intent.RELATIVE)
+    roundtrip = delta_e_2000(screen_lab, reached)
+    return ColorProof(
+        screen_lab=screen_lab,
+        device=device,
+        print_lab=print_lab,
+        delta_e=delta_e,
+        out_of_gamut=roundtrip > out_of_gamut_delta_e,
+        roundtrip_delta_e=roundtrip,
+        print_rgb=lab_to_srgb8(print_lab),
+    )
