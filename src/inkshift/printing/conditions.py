@@ -32,7 +32,7 @@ File schema (TOML, read with :mod:`tomllib`)
 
     [tone_value_increase]
     reference_tint = 50                # percent, strictly between 0 and 100
-    curve = "parabola"                 # "parabola" or "power" (see below)
+    curve = "parabola"                 # "parabola" or "hyperbola" (see below)
     cyan = 14                          # percent at the reference tint, 0..50
 
     [black_generation]                 # CMYK conditions only
@@ -46,8 +46,10 @@ the increase at ``r``); both give the Murray–Davies tone value ``m(t)``:
 * ``parabola``: ``m = t + v t (1 - t) / (r (1 - r))``, the symmetric curve of
   offset presses (common practice). It must stay monotonic, which needs
   ``v <= r (1 - r)``.
-* ``power``: ``m = 1 - (1 - t) ** g`` with ``g`` chosen so that ``m(r) = r + v``;
-  always monotonic, peaks below 50 %, suited to the large gain of newsprint.
+* ``hyperbola``: ``m = t (1 + b) / (1 + b t)`` with ``b = v / (r (1 - r - v))``
+  so that ``m(r) = r + v``; monotonic for any increase below ``1 - r``, with
+  its largest increase below 50 % and a slope that stays positive in the
+  shadows; suited to the large gain of newsprint.
 
 Every problem raises :class:`~inkshift.errors.ConditionError` naming the key.
 """
@@ -81,7 +83,7 @@ CMYK_INKS: tuple[str, ...] = ("cyan", "magenta", "yellow", "black")
 """Process inks of a four-colour condition, in device channel order."""
 GRAY_INKS: tuple[str, ...] = ("black",)
 """The single ink of a grayscale condition."""
-TVI_CURVES: tuple[str, ...] = ("parabola", "power")
+TVI_CURVES: tuple[str, ...] = ("parabola", "hyperbola")
 """Shapes of the tone value increase curve (see the module docstring)."""
 
 MAX_TVI_PERCENT = 50.0  # no printing condition in ISO 12647-2/-3 comes near this (from memory)
@@ -286,7 +288,7 @@ def parse_condition(data: dict, source: str) -> Condition:
             raise ConditionError(source, key, f"{value:g} % at {ref:g} % would reach a tone value of 100 %")
         if curve == "parabola" and not _tvi_slope_ok(value / 100.0, ref / 100.0):
             raise ConditionError(
-                source, key, f"{value:g} % at {ref:g} % makes the parabola curve non-monotonic; use curve = \"power\""
+                source, key, f"{value:g} % at {ref:g} % makes the parabola curve non-monotonic; use curve = \"hyperbola\""
             )
         tvi[ink] = ToneValueIncrease(value, ref, curve)
 
