@@ -47,10 +47,10 @@ from numpy.typing import ArrayLike, NDArray
 
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes
-from inkshift.icc.encoding import legacy16_lab_grid
-from inkshift.icc.evaluate import device_to_lab, lab_to_device
+from inkshift.icc.evaluate import device_to_lab, select_table
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
+from inkshift.icc.summary import total_ink_limit
 from inkshift.shipped import resolve_profile
 
 __all__ = [
@@ -234,21 +234,21 @@ def _open(profile: Any) -> Profile:
     raise ProfileError(str(profile), f"not a profile: {type(profile).__name__}")
 
 
-def estimate_ink_limit(profile: Any, *, points: int = 17) -> float | None:
+def estimate_ink_limit(profile: Any) -> float | None:
     """Return a CMYK profile's ink limit (fraction, e.g. 3.0) read from its B2A1, or None.
 
-    The largest channel sum B2A1 produces over a ``points**3`` CIELAB grid,
-    rounded up to whole percent: a profile's own separation never asks for
-    more ink than its condition allows, so this is the limit it was built
-    for. Returns None (no limit) for other colour spaces.
+    The largest channel sum over the table's CLUT nodes
+    (:func:`inkshift.icc.summary.total_ink_limit`), rounded up to whole
+    percent: a profile's own separation never asks for more ink than its
+    condition allows, so this is the limit it was built for. None for
+    profiles that are not CMYK or have no B2A table.
     """
     prof = _open(profile)
-    if prof.channels != 4:
+    tag = select_table(prof, "B2A", Intent.RELATIVE) if prof.channels == 4 else None
+    percent = total_ink_limit(prof.luts[tag]) if tag is not None else None
+    if percent is None:
         return None
-    grid = legacy16_lab_grid(points).reshape(-1, 3)
-    grid = grid[grid[:, 0] <= 100.0]
-    dev = lab_to_device(prof, grid, Intent.RELATIVE)
-    return float(np.ceil(np.max(np.sum(dev, axis=-1)) * 100.0 - 1e-6) / 100.0)
+    return float(np.ceil(percent - 1e-6) / 100.0)
 
 
 def profile_boundary_lab(profile: Any, *, ink_limit: float | None = None, steps: int = FACE_STEPS) -> NDArray[np.float64]:
