@@ -21,7 +21,7 @@ from PIL import ImageCms
 from inkshift.color.convert import D50_XYZ, xyz_to_lab
 from inkshift.errors import InputError
 from inkshift.icc.cms import lab_profile, transform_colors
-from inkshift.icc.encoding import lab_from_8, legacy16_lab_grid
+from inkshift.icc.encoding import lab_to_legacy16, legacy16_lab_grid
 from inkshift.icc.write import printer_profile_bytes
 
 CREATED = "2024-05-01T12:34:56"
@@ -279,3 +279,39 @@ def test_bad_tables_raise_one_line_input_errors():
     bad[1][0, 0, 0, 0, 0] = np.nan
     with pytest.raises(InputError, match="non-finite"):
         printer_profile_bytes(replace(t, a2b=bad), created=CREATED)
+
+
+# ------------------------------------------------------- the project's reader
+
+
+@pytest.mark.parametrize("intent", [0, 1, 2])
+def test_project_reader_returns_the_tables_at_grid_nodes(intent):
+    from inkshift.icc.evaluate import device_to_lab, lab_to_device
+    from inkshift.icc.lut import eval_lut
+    from inkshift.icc.read import read_profile
+
+    tables = synthetic_cmyk(a2b_points=5, b2a_points=9)
+    prof = read_profile(printer_profile_bytes(tables, created=CREATED))
+    assert (prof.device_class, prof.color_space, prof.pcs) == ("prtr", "CMYK", "LAB")
+    assert prof.description == tables.description and prof.copyright == tables.copyright
+    np.testing.assert_allclose(prof.media_white, tables.media_white_xyz, atol=1e-5)
+    nodes = np.linspace(0.0, 1.0, 5)
+    dev = np.stack(np.meshgrid(*[nodes] * 4, indexing="ij"), -1).reshape(-1, 4)
+    # Legacy 16-bit Lab: L* step 100/65280, a*/b* step 1/256; rounding is half a step.
+    got = device_to_lab(prof, dev, intent)
+    np.testing.assert_allclose(got, tables.a2b[intent].reshape(-1, 3), atol=0.5 / 256 + 1e-9)
+    grid = legacy16_lab_grid(9).reshape(-1, 3)
+    np.testing.assert_allclose(lab_to_device(prof, grid, intent), tables.b2a[intent].reshape(-1, 4), atol=0.5 / 65535 + 1e-9)
+    # gamt: legacy 16-bit Lab in, one channel out, 0 in gamut.
+    flags = eval_lut(prof.gamut, lab_to_legacy16(grid) / 65535.0)[:, 0]
+    np.testing.assert_array_equal(flags, tables.gamut.reshape(-1))
+
+
+def test_project_reader_gray_256_point_table():
+    from inkshift.icc.evaluate import device_to_lab
+    from inkshift.icc.read import read_profile
+
+    tables = synthetic_gray()
+    prof = read_profile(printer_profile_bytes(tables, created=CREATED))
+    got = device_to_lab(prof, np.linspace(0.0, 1.0, 256)[:, None], 1)
+    np.testing.assert_allclose(got, tables.a2b[1], atol=0.5 / 256 + 1e-6)
