@@ -1,0 +1,34 @@
+"""The picture outputs of a proof, gathered in one place.
+
+- :func:`heatmap_overlay` and :func:`scalar_map` (in :mod:`inkshift.report.heatmap`):
+  full-resolution maps in the project's heat scale with one shared legend.
+- :class:`Swatch`, :func:`side_by_side` and :func:`swatch_sheet` (in
+  :mod:`inkshift.report.sheets`): previews and labelled swatch pairs.
+
+Each function returns a Pillow image; callers save it with
+:func:`inkshift.files.save_image_atomic`.
+"""
+
+from __future__ import annotations
+
+from inkshift.report.heatmap import (
+    HEAT_FLOOR_DELTA_E,
+    HEAT_OPAQUE_DELTA_E,
+    HEATMAP_VMAX_DEFAULT,
+    heatmap_overlay,
+    legend_strip,
+    scalar_map,
+)
+from inkshift.report.sheets import Swatch, side_by_side, swatch_sheet
+
+__all__ = [
+    "heatmap_overlay",
+    "scalar_map",
+    "legend_strip",
+    "Swatch",
+    "side_by_side",
+    "swatch_sheet",
+    "HEAT_FLOOR_DELTA_E",
+    "HEAT_OPAQUE_DELTA_E",
+    "HEATMAP_VMAX_DEFAULT",
+]
