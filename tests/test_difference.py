@@ -10,6 +10,7 @@ from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 
 from inkshift.color.difference import delta_e_1976, delta_e_1994, delta_e_2000
+from inkshift.errors import InputError
 
 # G. Sharma, W. Wu, E. N. Dalal (2005), "The CIEDE2000 color-difference formula:
 # implementation notes, supplementary test data, and mathematical observations",
@@ -109,11 +110,19 @@ def test_delta_e_2000_broadcasts() -> None:
     out = delta_e_2000(_LAB1[:, None, :], _LAB2[None, :5, :])
     assert out.shape == (34, 5)
     np.testing.assert_allclose(out[:5, :5].diagonal(), delta_e_2000(_LAB1[:5], _LAB2[:5]), rtol=1e-14)
+    # One reference colour against many.
+    np.testing.assert_allclose(
+        delta_e_2000(_LAB1[0], _LAB2), colour.delta_E(np.broadcast_to(_LAB1[0], _LAB2.shape), _LAB2, method="CIE 2000"),
+        rtol=1e-10,
+    )
 
 
-def test_delta_e_2000_rejects_wrong_last_axis() -> None:
-    with pytest.raises(ValueError):
-        delta_e_2000(np.zeros((4, 2)), np.zeros((4, 2)))
+@pytest.mark.parametrize("f", [delta_e_1976, delta_e_1994, delta_e_2000])
+def test_rejects_wrong_shapes_with_project_error(f) -> None:
+    with pytest.raises(InputError):
+        f(np.zeros((4, 2)), np.zeros((4, 2)))
+    with pytest.raises(InputError):
+        f(np.zeros((4, 3)), np.zeros((5, 3)))
 
 
 def test_delta_e_1976_worked_example() -> None:

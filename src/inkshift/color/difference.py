@@ -19,6 +19,8 @@ from __future__ import annotations
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from inkshift.errors import InputError
+
 __all__ = ["delta_e_1976", "delta_e_1994", "delta_e_2000"]
 
 _25_POW_7 = 25.0**7
@@ -33,7 +35,11 @@ def _pair(lab1: ArrayLike, lab2: ArrayLike) -> tuple[NDArray[np.float64], NDArra
     a = np.asarray(lab1, dtype=np.float64)
     b = np.asarray(lab2, dtype=np.float64)
     if a.shape[-1:] != (3,) or b.shape[-1:] != (3,):
-        raise ValueError("CIELAB arrays must have a last axis of length 3")
+        raise InputError(f"colour difference: CIELAB arrays need a last axis of 3, got shapes {a.shape} and {b.shape}")
+    try:
+        np.broadcast_shapes(a.shape, b.shape)
+    except ValueError:
+        raise InputError(f"colour difference: CIELAB arrays of shapes {a.shape} and {b.shape} do not broadcast") from None
     return a, b
 
 
@@ -112,9 +118,9 @@ def delta_e_2000(
     (|h1' − h2'| ≤ 180° takes the plain mean). The formula is symmetric in its
     two arguments.
 
-    The trigonometric terms of the weighting function T are evaluated from
-    cos h̄' and sin h̄' with multiple-angle identities, which saves four
-    cosine evaluations per pair and is exact to rounding.
+    The four cosines of the weighting function T are evaluated from one
+    cosine and one sine of h̄' with multiple-angle identities (exact to
+    rounding), and arrays are updated in place to keep temporaries few.
 
     Parameters
     ----------
@@ -147,9 +153,9 @@ def delta_e_2000(
     c1p = np.hypot(a1p, b1)
     c2p = np.hypot(a2p, b2)
     h1p = np.arctan2(b1, a1p)
-    h1p[h1p < 0.0] += _TWO_PI
+    np.add(h1p, _TWO_PI, out=h1p, where=h1p < 0.0)
     h2p = np.arctan2(b2, a2p)
-    h2p[h2p < 0.0] += _TWO_PI
+    np.add(h2p, _TWO_PI, out=h2p, where=h2p < 0.0)
     del a1p, a2p
 
     c12 = c1p * c2p
@@ -159,8 +165,8 @@ def delta_e_2000(
     d_l = l2 - l1
     d_c = c2p - c1p
     d_h = h2p - h1p
-    d_h[d_h > np.pi] -= _TWO_PI
-    d_h[d_h < -np.pi] += _TWO_PI
+    np.subtract(d_h, _TWO_PI, out=d_h, where=d_h > np.pi)
+    np.add(d_h, _TWO_PI, out=d_h, where=d_h < -np.pi)
     d_h[neutral] = 0.0
     d_h *= 0.5
     np.sin(d_h, out=d_h)
@@ -172,7 +178,9 @@ def delta_e_2000(
     h_bar = h1p + h2p
     far = np.abs(h1p - h2p) > np.pi
     del h1p, h2p
-    h_bar[far] += np.where(h_bar[far] < _TWO_PI, _TWO_PI, -_TWO_PI)
+    wrap = np.where(h_bar < _TWO_PI, _TWO_PI, -_TWO_PI)
+    np.add(h_bar, wrap, out=h_bar, where=far)
+    del wrap
     np.multiply(h_bar, np.where(neutral, 1.0, 0.5), out=h_bar)
     del far, neutral
 
