@@ -54,8 +54,9 @@ def test_heatmap_size_mode_and_legend_below(h: int, w: int) -> None:
     img = heatmap_overlay(rgb, de, np.zeros((h, w), bool))
     assert img.mode == "RGB"
     width = max(w, hm.LEGEND_MIN_WIDTH)
+    page = int(hm.faded_gray(np.array([255, 255, 255], np.uint8)))
     legend = hm.legend_strip(width, vmax=hm.HEATMAP_VMAX_DEFAULT, title=hm.HEATMAP_TITLE,
-                             quantity=hm.HEATMAP_QUANTITY, hatch=hm.hatch_style_for_width(w))
+                             quantity=hm.HEATMAP_QUANTITY, hatch=hm.hatch_style_for_width(w), over_gray=page)
     assert img.size == (width, h + legend.height)
     assert legend.height > 0
     # The legend is what lies under the chart, pixel for pixel.
@@ -210,6 +211,20 @@ def test_legend_scales_with_width_and_shows_the_scale_and_hatch() -> None:
     assert (0, 0, 0) in colours and (255, 255, 255) in colours  # hatch sample
 
 
+def test_heatmap_legend_bar_fades_in_like_the_map() -> None:
+    # The bar of the heat-map legend starts as the bare page gray (below the floor
+    # nothing is painted) and ends in the scale's top colour (reference: heat_colors).
+    vmax = 10.0
+    page = 200
+    strip = np.asarray(hm.legend_strip(600, vmax=vmax, title="t", quantity="q", over_gray=page)).astype(int)
+    found = strip.reshape(-1, 3)
+    assert np.abs(found - page).max(axis=1).min() == 0
+    top = heat_colors(np.array([vmax]), vmax).astype(int)[0]
+    assert np.abs(found - top).max(axis=1).min() <= 4
+    bottom = heat_colors(np.array([0.0]), vmax).astype(int)[0]
+    assert np.abs(found - bottom).max(axis=1).min() > 4  # the unpainted start is not shown
+
+
 def test_tick_values_drop_values_beyond_the_top_and_end_at_vmax() -> None:
     assert hm._tick_values(10.0, [0, 1, 2, 5, 10, 20]) == [0.0, 1.0, 2.0, 5.0, 10.0]
     assert hm._tick_values(7.5, [0, 5, 20]) == [0.0, 5.0, 7.5]
@@ -235,8 +250,16 @@ def test_bad_inputs_raise_input_error() -> None:
         heatmap_overlay(rgb, ok_de, np.zeros((4,), bool))
     with pytest.raises(InputError, match="uint8"):
         heatmap_overlay(rgb.astype(float), ok_de, ok_oog)
-    with pytest.raises(InputError, match="positive"):
-        heatmap_overlay(rgb, ok_de, ok_oog, vmax=0)
+    with pytest.raises(InputError, match="at least 2"):
+        heatmap_overlay(rgb, ok_de, ok_oog, vmax=hm.HEAT_OPAQUE_DELTA_E / 2)
+    with pytest.raises(InputError, match="not a number"):
+        heatmap_overlay(rgb, ok_de, ok_oog, vmax="many")
+    with pytest.raises(InputError, match="tick"):
+        heatmap_overlay(rgb, ok_de, ok_oog, ticks=["a", 2])
+    with pytest.raises(InputError, match="above 0"):
+        scalar_map(np.zeros((3, 3)), vmax=0, title="t", legend_label="q")
+    with pytest.raises(InputError, match="width"):
+        hm.legend_strip(100, vmax=5, title="t", quantity="q")
     with pytest.raises(InputError):
         heatmap_overlay(np.zeros((0, 5, 3), np.uint8), np.zeros((0, 5)), np.zeros((0, 5), bool))
     with pytest.raises(InputError):
@@ -277,6 +300,8 @@ def _has_colour(img: Image.Image, rgb: np.ndarray) -> bool:
 
 
 def test_swatch_text_and_validation() -> None:
+    a = Swatch([1, 2, 3], [1, 2, 3], "x", 1.0)
+    assert a == a and a != Swatch([1, 2, 3], [1, 2, 3], "x", 1.0)  # identity, no array truth-value error
     sw = Swatch(np.array([255, 0, 16], np.uint8), [250, 10, 20], "brand red", 4.26, ("OUT", "MERGE"))
     assert sw.text_lines() == ["brand red", "#FF0010", "dE00 4.3", "OUT MERGE"]
     assert Swatch([1, 2, 3], [1, 2, 3], "#010203", float("nan")).text_lines() == ["#010203", "dE00 n/a"]

@@ -222,11 +222,17 @@ def _band_image(packed: NDArray[np.uint32]) -> Image.Image:
     return Image.frombuffer("RGB", (w, h), np.ascontiguousarray(packed), "raw", "RGBX", 0, 1)
 
 
-def _check_vmax(vmax: float, what: str) -> float:
-    vmax = float(vmax)
-    if not np.isfinite(vmax) or vmax <= 0.0:
-        raise InputError(f"{what}: the top of the scale must be a positive number, got {vmax}")
-    return vmax
+def _check_vmax(vmax: float, what: str, minimum: float | None = None) -> float:
+    """Return ``vmax`` as float if finite and above 0 (or at least ``minimum``)."""
+    try:
+        top = float(vmax)
+    except (TypeError, ValueError):
+        raise InputError(f"{what}: the top of the scale '{vmax}' is not a number") from None
+    if minimum is None and not (np.isfinite(top) and top > 0.0):
+        raise InputError(f"{what}: the top of the scale must be a number above 0, got {vmax}")
+    if minimum is not None and not (np.isfinite(top) and top >= minimum):
+        raise InputError(f"{what}: the top of the scale must be at least {format_value(minimum)}, got {vmax}")
+    return top
 
 
 def _check_map(arr: NDArray, shape: tuple[int, int], name: str, what: str) -> NDArray:
@@ -244,7 +250,11 @@ def _bands(height: int, width: int) -> list[tuple[int, int]]:
 def _tick_values(vmax: float, ticks: Sequence[float] | None) -> list[float]:
     """Ticks inside [0, vmax), then vmax itself (labelled as 'vmax and above')."""
     source = HEAT_TICKS_DEFAULT if ticks is None else ticks
-    values = sorted({float(t) for t in source if np.isfinite(t) and 0.0 <= float(t) < vmax})
+    try:
+        given = np.asarray(list(source), dtype=np.float64).reshape(-1)
+    except (TypeError, ValueError):
+        raise InputError(f"legend: tick values must be numbers, got {list(source)!r}") from None
+    values = sorted({float(t) for t in given if np.isfinite(t) and 0.0 <= t < vmax})
     return values + [vmax]
 
 
@@ -256,6 +266,7 @@ def legend_strip(
     quantity: str,
     ticks: Sequence[float] | None = None,
     hatch: HatchStyle | None = None,
+    over_gray: int | None = None,
 ) -> Image.Image:
     """Return the legend strip drawn under a heat map.
 
@@ -277,9 +288,15 @@ def legend_strip(
         Values to label; default :data:`inkshift.color.scale.HEAT_TICKS_DEFAULT`.
     hatch
         The hatch drawn on the map, to show a sample of it.
+    over_gray
+        If given (0..255), the bar shows the colours exactly as the heat map
+        paints them over a base of this gray: faded in from
+        :data:`HEAT_FLOOR_DELTA_E` to :data:`HEAT_OPAQUE_DELTA_E`.
     """
     vmax = _check_vmax(vmax, "legend")
     width = int(width)
+    if width < LEGEND_MIN_WIDTH:
+        raise InputError(f"legend: width must be at least {LEGEND_MIN_WIDTH} pixels, got {width}")
     f = font_size_for_width(width)
     font = label_font(f)
     lh = line_height(font)
@@ -311,7 +328,14 @@ def legend_strip(
     x0, x1 = pad, max(pad + 1, right - q_w - f)  # bar spans [x0, x1)
     bar_w = x1 - x0
     centres = (np.arange(bar_w) + 0.5) * (vmax / bar_w)
-    bar = np.broadcast_to(heat_colors(centres, vmax)[None, :, :], (bar_h, bar_w, 3))
+    if over_gray is None:
+        colours = heat_colors(centres, vmax)
+    else:
+        idx = _levels(centres, vmax)
+        idx <<= 8
+        idx += np.uint32(over_gray)
+        colours = _overlay_lut(vmax).take(idx).view(np.uint8).reshape(-1, 4)[:, :3]
+    bar = np.broadcast_to(colours[None, :, :], (bar_h, bar_w, 3))
     strip.paste(Image.fromarray(np.ascontiguousarray(bar, dtype=np.uint8), mode="RGB"), (x0, bar_top))
     draw.rectangle([x0, bar_top, x1 - 1, bar_top + bar_h - 1], outline=TEXT_COLOR, width=1)
     draw.text((x1 + f // 2, bar_top + bar_h // 2), quantity, fill=TEXT_COLOR, font=font, anchor="lm")
@@ -365,8 +389,10 @@ def heatmap_overlay(
         above ``vmax`` take the top colour, NaN is treated as no difference.
     out_of_gamut
         (H, W) bool; these pixels get the diagonal hatch (:class:`HatchStyle`).
+        The legend's bar shows the colours as painted over the faded white page.
     vmax, ticks, title
-        Top of the scale, labelled values, title line of the legend.
+        Top of the scale (at least :data:`HEAT_OPAQUE_DELTA_E`), labelled values,
+        title line of the legend.
 
     Returns
     -------
@@ -376,7 +402,8 @@ def heatmap_overlay(
         :data:`LEGEND_MIN_WIDTH` get a canvas that wide, white right of the chart.
     """
     what = "heat map"
-    vmax = _check_vmax(vmax, what)
+    # Values above vmax are drawn at vmax; below the opaque point that would fade them out.
+    vmax = _check_vmax(vmax, what, minimum=HEAT_OPAQUE_DELTA_E)
     screen_rgb = np.asarray(screen_rgb)
     if screen_rgb.ndim != 3 or screen_rgb.shape[2] != 3 or 0 in screen_rgb.shape or screen_rgb.dtype != np.uint8:
         raise InputError(f"{what}: expected an (H, W, 3) uint8 image, got {screen_rgb.dtype} {screen_rgb.shape}")
@@ -384,8 +411,15 @@ def heatmap_overlay(
     delta_e = _check_map(delta_e, (h, w), "delta_e", what)
     out_of_gamut = _check_map(out_of_gamut, (h, w), "out_of_gamut", what)
     hatch = hatch_style_for_width(w)
+    page = int(faded_gray(np.array(BACKGROUND, np.uint8)))
     legend = legend_strip(
-        max(w, LEGEND_MIN_WIDTH), vmax=vmax, title=title, quantity=HEATMAP_QUANTITY, ticks=ticks, hatch=hatch
+        max(w, LEGEND_MIN_WIDTH),
+        vmax=vmax,
+        title=title,
+        quantity=HEATMAP_QUANTITY,
+        ticks=ticks,
+        hatch=hatch,
+        over_gray=page,
     )
     canvas = _canvas_with_legend(h, w, legend)
     lut = _overlay_lut(vmax)

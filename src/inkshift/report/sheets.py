@@ -113,7 +113,7 @@ def _as_rgb3(value: ArrayLike, what: str) -> NDArray[np.uint8]:
     return arr
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Swatch:
     """One palette colour on screen and in print, for the swatch rows.
 
