@@ -10,7 +10,9 @@ from colour.blindness import CVD_MATRICES_MACHADO2010
 from inkshift.color.convert import D50_XYZ
 from inkshift.color.difference import delta_e_2000
 from inkshift.color.vision import (
+    BRADFORD,
     CVD_KINDS,
+    SRGB_TO_XYZ_D65,
     CVD_MERGE_DELTA_E,
     cvd_matrix,
     lab_to_gray_lab,
@@ -148,6 +150,23 @@ def test_simulate_srgb_matches_colour_pipeline(kind: str) -> None:
     expected = colour.cctf_encoding(linear, function="sRGB")
     severity = 1.0 if kind.endswith("opia") else 0.6
     np.testing.assert_allclose(simulate_cvd_srgb(rgb, kind, severity), expected, atol=1e-6)
+
+
+def test_constants_match_colour_science() -> None:
+    # IEC 61966-2-1 sRGB matrix and the Bradford matrix, as colour-science has them.
+    np.testing.assert_array_equal(SRGB_TO_XYZ_D65, colour.RGB_COLOURSPACES["sRGB"].matrix_RGB_to_XYZ)
+    np.testing.assert_array_equal(BRADFORD, colour.adaptation.CAT_BRADFORD)
+
+
+def test_lab_to_linear_srgb_close_to_colour_default() -> None:
+    # colour-science's default path (white from the sRGB xy, the standard's rounded
+    # XYZ -> RGB matrix) differs by the documented 2e-4 at most.
+    lab = np.random.default_rng(17).uniform([0.0, -100.0, -100.0], [100.0, 100.0, 100.0], size=(2000, 3))
+    xy = colour.XYZ_to_xy(D50_XYZ)
+    expected = colour.XYZ_to_RGB(
+        colour.Lab_to_XYZ(lab, illuminant=xy), "sRGB", illuminant=xy, chromatic_adaptation_transform="Bradford"
+    )
+    np.testing.assert_allclose(lab_to_linear_srgb(lab), expected, rtol=2e-4, atol=2e-4)
 
 
 def _colour_matrix_white_to_lab(rgb_linear: np.ndarray) -> np.ndarray:

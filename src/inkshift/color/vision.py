@@ -9,7 +9,8 @@ authors published those matrices for severities 0, 0.1, ..., 1; severities in
 between interpolate linearly between the two neighbouring published matrices,
 as their supplementary material does. The published table is read from
 colour-science (``colour.blindness.CVD_MATRICES_MACHADO2010``), an open
-reference library the project already depends on.
+reference library the project already depends on; it is imported on the first
+simulation only, because importing colour-science takes seconds.
 
 Severity 1 of protanomaly and deuteranomaly is protanopia and deuteranopia.
 For tritanomaly the authors shift the S-cone sensitivity instead of replacing
@@ -20,22 +21,21 @@ This simulates a typical dichromat or anomalous trichromat, not any one reader.
 
 Colours given as CIELAB (D50, the ICC profile connection space) are taken to
 linear sRGB through CIE XYZ with the Bradford chromatic adaptation from the ICC
-D50 white to the sRGB white, built from colour-science's sRGB and Bradford
-matrices. Two choices differ from colour-science's own conversion by up to
-about 1e-4 in linear RGB: the adaptation starts from the white of the sRGB
-matrix (so sRGB white is exactly L* = 100, a* = b* = 0), and CIELAB -> sRGB
-uses the exact inverse of the RGB -> XYZ matrix.
+D50 white to the sRGB white, from the standard sRGB and Bradford matrices
+(the constants colour-science uses too; the tests check that). Two choices
+differ from colour-science's own conversion, by up to about 2e-4 in linear RGB
+(0.012 ΔE00): the adaptation starts from the white of the sRGB matrix (so sRGB
+white is exactly L* = 100, a* = b* = 0), and CIELAB -> sRGB uses the exact
+inverse of the RGB -> XYZ matrix rather than the standard's rounded one.
 """
 
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from typing import Final
 
 import numpy as np
-from colour.adaptation import CAT_BRADFORD
-from colour.blindness import CVD_MATRICES_MACHADO2010
-from colour.models import RGB_COLOURSPACE_sRGB
 from numpy.typing import ArrayLike, NDArray
 
 from inkshift.color.convert import D50_XYZ, lab_to_xyz, xyz_to_lab
@@ -54,6 +54,8 @@ __all__ = [
     "lab_to_linear_srgb",
     "linear_srgb_to_lab",
     "lab_to_gray_lab",
+    "SRGB_TO_XYZ_D65",
+    "BRADFORD",
 ]
 
 CVD_MERGE_DELTA_E: Final[float] = MERGE_DELTA_E
@@ -77,7 +79,11 @@ CVD_KINDS: Final[tuple[str, ...]] = tuple(_KINDS)
 _SEVERITY_STEPS: Final[int] = 10  # the published matrices are 0.1 apart
 
 
+@lru_cache(maxsize=None)
 def _published_table(key: str) -> NDArray[np.float64]:
+    """The published matrices of one deficiency, stacked (11, 3, 3) by severity 0, 0.1, ..., 1."""
+    from colour.blindness import CVD_MATRICES_MACHADO2010
+
     table = CVD_MATRICES_MACHADO2010[key]
     grid = sorted(table)
     if not np.allclose(grid, np.linspace(0.0, 1.0, _SEVERITY_STEPS + 1)):  # pragma: no cover - data guard
@@ -85,11 +91,6 @@ def _published_table(key: str) -> NDArray[np.float64]:
     stack = np.stack([np.asarray(table[s], dtype=np.float64) for s in grid])
     stack.setflags(write=False)
     return stack
-
-
-_TABLES: Final[dict[str, NDArray[np.float64]]] = {
-    key: _published_table(key) for key in ("Protanomaly", "Deuteranomaly", "Tritanomaly")
-}
 
 
 def _lookup(kind: str, severity: float) -> tuple[str, float]:
@@ -134,7 +135,7 @@ def cvd_matrix(kind: str, severity: float = 1.0) -> NDArray[np.float64]:
         For an unknown kind or a severity outside 0..1.
     """
     key, s = _lookup(kind, severity)
-    table = _TABLES[key]
+    table = _published_table(key)
     position = s * _SEVERITY_STEPS
     lower = min(math.floor(position), _SEVERITY_STEPS - 1)
     weight = position - lower
@@ -173,22 +174,30 @@ def simulate_cvd_srgb(rgb_srgb: ArrayLike, kind: str, severity: float = 1.0) -> 
     return linear_to_srgb(np.clip(linear, 0.0, 1.0, out=linear))
 
 
+SRGB_TO_XYZ_D65: Final[NDArray[np.float64]] = np.array(
+    [[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722], [0.0193, 0.1192, 0.9505]]
+)
+"""Linear sRGB -> CIE XYZ (D65, Y of white = 1), IEC 61966-2-1:1999 section 5.2."""
+
+BRADFORD: Final[NDArray[np.float64]] = np.array(
+    [[0.8951, 0.2664, -0.1614], [-0.7502, 1.7135, 0.0367], [0.0389, -0.0685, 1.0296]]
+)
+"""XYZ -> Bradford cone-like responses (Lam 1985), as in ICC.1:2022 annex E."""
+
+
 def _rgb_to_xyz_matrix() -> NDArray[np.float64]:
     """Linear sRGB -> ICC D50 XYZ: sRGB's primary matrix, then Bradford D65 -> D50.
 
-    colour-science's sRGB matrices are the standard's 4-decimal ones, and the
-    published XYZ -> RGB matrix is not the exact inverse of the RGB -> XYZ one.
+    The standard's matrices have 4 decimals, and its XYZ -> RGB matrix is not the exact inverse of the RGB -> XYZ one.
     The project inverts the RGB -> XYZ matrix instead, so that the two
     directions are exact inverses (a round trip returns the colour to rounding).
     """
-    primaries = np.asarray(RGB_COLOURSPACE_sRGB.matrix_RGB_to_XYZ, dtype=np.float64)
     # The adaptation starts from the white this matrix gives for R = G = B = 1
     # (0.9505, 1, 1.089), so display white lands exactly on the PCS white.
-    white = primaries.sum(axis=1)
-    bradford = np.asarray(CAT_BRADFORD, dtype=np.float64)
-    gain = (bradford @ D50_XYZ) / (bradford @ white)
-    adapt = np.linalg.solve(bradford, gain[:, None] * bradford)  # von Kries in Bradford space
-    return adapt @ primaries
+    white = SRGB_TO_XYZ_D65.sum(axis=1)
+    gain = (BRADFORD @ D50_XYZ) / (BRADFORD @ white)
+    adapt = np.linalg.solve(BRADFORD, gain[:, None] * BRADFORD)  # von Kries in Bradford space
+    return adapt @ SRGB_TO_XYZ_D65
 
 
 _LINEAR_SRGB_TO_XYZ_D50: Final[NDArray[np.float64]] = _rgb_to_xyz_matrix()
