@@ -18,7 +18,7 @@ from inkshift.color.scale import heat_colors
 from inkshift.errors import InputError
 from inkshift.report import heatmap as hm
 from inkshift.report.images import Swatch, heatmap_overlay, scalar_map, side_by_side, swatch_sheet
-from inkshift.report.sheets import font_size_for_width
+from inkshift.report.sheets import font_size_for_width, plain_text
 
 
 def _lab_of_srgb(rgb_u8: np.ndarray) -> np.ndarray:
@@ -241,6 +241,16 @@ def test_legend_text_is_in_the_bundled_font() -> None:
         assert bytes(font.getmask(ch)) != notdef, ch
 
 
+def test_text_the_face_cannot_draw_is_replaced() -> None:
+    assert plain_text("ΔE00 ≥ 5 – a×b → ok") == "dE00 >= 5 - axb -> ok"
+    assert plain_text("Café") == "Cafe"
+    assert plain_text("\u4e2d") == "?"
+    font = ImageFont.load_default(size=40)
+    notdef = bytes(font.getmask("\ue000"))
+    for ch in set(plain_text("ΔE00 between prints, Zürich ≈ 3½ €")) - {" "}:
+        assert bytes(font.getmask(ch)) != notdef, ch
+
+
 def test_bad_inputs_raise_input_error() -> None:
     rgb = np.zeros((4, 5, 3), np.uint8)
     ok_de, ok_oog = np.zeros((4, 5), np.float32), np.zeros((4, 5), bool)
@@ -281,6 +291,10 @@ def test_scalar_map_paints_heat_colours_with_the_same_legend() -> None:
     assert np.abs(arr[:30, :20].astype(int) - heat_colors(values, vmax).astype(int)).max() <= 1
     tiny = scalar_map(np.zeros((1, 1)), vmax=1.0, title="t", legend_label="q")
     assert tiny.size[1] > 1
+    # Default top of the scale, and a quantity name with signs the face lacks.
+    default = scalar_map(values, title="t", legend_label="ΔE00 between the two prints")
+    assert np.abs(np.asarray(default)[:30, :20].astype(int)
+                  - heat_colors(values, hm.HEATMAP_VMAX_DEFAULT).astype(int)).max() <= 1
 
 
 # ---------------------------------------------------------------- swatches

@@ -324,6 +324,7 @@ def legend_strip(
         draw.rectangle([xs, ys, xs + sample_w - 1, ys + bar_h - 1], outline=TEXT_COLOR, width=1)
         draw.text((xs + sample_w + f // 2, ys + bar_h // 2), OUT_OF_GAMUT_LABEL, fill=TEXT_COLOR, font=font, anchor="lm")
         right = sx - 2 * f
+    quantity = fit_text(font, quantity, width // 3)
     q_w = text_width(font, quantity)
     x0, x1 = pad, max(pad + 1, right - q_w - f)  # bar spans [x0, x1)
     bar_w = x1 - x0
@@ -440,7 +441,7 @@ def heatmap_overlay(
 def scalar_map(
     values: NDArray[np.floating],
     *,
-    vmax: float,
+    vmax: float = HEATMAP_VMAX_DEFAULT,
     title: str,
     legend_label: str,
     ticks: Sequence[float] | None = None,

@@ -12,6 +12,7 @@ marks (for example out of gamut, merges) in words.
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass, field
 from functools import lru_cache
 from typing import Sequence
@@ -28,6 +29,7 @@ __all__ = [
     "swatch_sheet",
     "font_size_for_width",
     "label_font",
+    "plain_text",
     "format_value",
     "TEXT_COLOR",
     "BACKGROUND",
@@ -70,6 +72,34 @@ def label_font(size: int) -> ImageFont.FreeTypeFont | ImageFont.ImageFont:
     return ImageFont.load_default(size=size)
 
 
+_SIGNS = {"Δ": "d", "≥": ">=", "≤": "<=", "≈": "~", "−": "-", "–": "-", "—": "-", "×": "x", "→": "->", "µ": "u"}
+
+
+@lru_cache(maxsize=1)
+def _notdef_mask() -> bytes:
+    return bytes(label_font(20).getmask("\ue000"))  # a private-use code point: never in the face
+
+
+@lru_cache(maxsize=1024)
+def _plain_char(ch: str) -> str:
+    if ch in _SIGNS:
+        return _SIGNS[ch]
+    if ch.isspace() or bytes(label_font(20).getmask(ch)) != _notdef_mask():
+        return ch if not ch.isspace() else " "
+    # A letter the face lacks: its base letter without accents (é -> e), else '?'.
+    base = "".join(c for c in unicodedata.normalize("NFKD", ch) if not unicodedata.combining(c))
+    if base and base != ch and all(_plain_char(c) == c for c in base):
+        return base
+    return "?"
+
+
+def plain_text(text: str) -> str:
+    """Return ``text`` with every character the bundled face cannot draw replaced:
+    known signs by ASCII ('ΔE00' -> 'dE00', '≥' -> '>='), accented letters by their
+    base letter, anything else by '?', so no label shows an empty box."""
+    return "".join(_plain_char(ch) for ch in str(text))
+
+
 def line_height(font: ImageFont.FreeTypeFont | ImageFont.ImageFont) -> int:
     """Return the distance between baselines of consecutive lines set in ``font``."""
     ascent, descent = font.getmetrics()  # type: ignore[union-attr]
@@ -77,12 +107,13 @@ def line_height(font: ImageFont.FreeTypeFont | ImageFont.ImageFont) -> int:
 
 
 def text_width(font: ImageFont.FreeTypeFont | ImageFont.ImageFont, text: str) -> int:
-    """Return the advance width of ``text`` in pixels."""
-    return int(np.ceil(font.getlength(text)))
+    """Return the advance width of ``text`` (as :func:`plain_text` makes it) in pixels."""
+    return int(np.ceil(font.getlength(plain_text(text))))
 
 
 def fit_text(font: ImageFont.FreeTypeFont | ImageFont.ImageFont, text: str, width: int) -> str:
-    """Return ``text``, shortened with '...' if it is wider than ``width`` pixels."""
+    """Return :func:`plain_text` of ``text``, shortened with '...' if wider than ``width`` pixels."""
+    text = plain_text(text)
     if text_width(font, text) <= width:
         return text
     lo, hi = 0, len(text)
