@@ -34,13 +34,14 @@ perceptual (B2A0)
     unchanged up to :data:`KNEE` times the print's maximum chroma, then the
     rest of the source range is squeezed into the remaining print range by
     ``r x / (1 + (r - 1) x)``, which meets the straight part with the same
-    slope and sends the sRGB boundary to the print boundary. Whatever is still
-    outside is clipped as in the relative intent.
+    slope and sends the sRGB boundary to the print boundary. Colours beyond
+    sRGB are clipped to the print's maximum chroma at the same L* and hue.
 saturation (B2A2)
     Lightness as in the perceptual intent; chroma scaled by the ratio of the
     print's to the source's maximum chroma at that lightness and hue, so the
     most saturated sRGB colours become the most saturated print colours, and
-    the gamut is used to the full (chroma as high as the print allows).
+    the gamut is used to the full (chroma as high as the print allows);
+    beyond that, clipped to the print's maximum chroma at the same L* and hue.
 """
 
 from __future__ import annotations
@@ -52,8 +53,9 @@ from itertools import combinations
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from inkshift.color.convert import D50_XYZ, lab_to_lch, lch_to_lab, xyz_to_lab
+from inkshift.color.convert import lab_to_lch, lch_to_lab
 from inkshift.color.difference import delta_e_2000
+from inkshift.color.vision import linear_srgb_to_lab, srgb_to_linear
 from inkshift.icc.intent import Intent
 from inkshift.printing.neugebauer import HalftoneModel, device_to_lab
 from inkshift.printing.separation import print_black
@@ -92,7 +94,8 @@ FACE3_STEPS = 21
 SRGB_FACE_STEPS = 97
 """Nodes per axis on each face of the sRGB cube."""
 _CLIP_COARSE = 2.0  # L* step of the first pass of the minimum-ΔE00 search
-_CLIP_FINE = 0.125  # L* step of the second pass
+_CLIP_MID = 0.5  # L* step of the second pass, over one coarse step either side
+_CLIP_FINE = 0.125  # L* step of the third pass, over one mid step either side
 
 
 @dataclass(frozen=True, eq=False)
@@ -215,16 +218,11 @@ def printer_gamut_boundary(model: HalftoneModel) -> GamutBoundary:
 
 @lru_cache(maxsize=1)
 def srgb_gamut_boundary() -> GamutBoundary:
-    """Return the boundary of sRGB (IEC 61966-2-1) in CIELAB D50, Bradford-adapted (colour-science)."""
-    import colour
-
+    """Return the boundary of sRGB (IEC 61966-2-1) in CIELAB D50, Bradford-adapted (:mod:`inkshift.color.vision`)."""
     s = np.linspace(0.0, 1.0, SRGB_FACE_STEPS)
     g2 = np.stack(np.meshgrid(s, s, indexing="ij"), axis=-1).reshape(-1, 2)
-    faces = [np.insert(g2, i, v, axis=1) for i in range(3) for v in (0.0, 1.0)]
-    rgb = np.concatenate(faces)
-    d50 = colour.CCS_ILLUMINANTS["CIE 1931 2 Degree Standard Observer"]["D50"]
-    xyz = colour.RGB_to_XYZ(rgb, "sRGB", illuminant=d50, chromatic_adaptation_transform="Bradford", apply_cctf_decoding=True)
-    return boundary_from_samples(xyz_to_lab(xyz, D50_XYZ), np.zeros(3))
+    rgb = np.concatenate([np.insert(g2, i, v, axis=1) for i in range(3) for v in (0.0, 1.0)])
+    return boundary_from_samples(linear_srgb_to_lab(srgb_to_linear(rgb)), np.zeros(3))
 
 
 def max_chroma(gbd: GamutBoundary, lightness: ArrayLike, hue: ArrayLike) -> NDArray[np.float64]:
@@ -264,7 +262,7 @@ def clip_to_gamut(gbd: GamutBoundary, lab: ArrayLike) -> NDArray[np.float64]:
     """Return, for each colour outside the boundary, the boundary point of its hue with the smallest CIEDE2000.
 
     Colours inside are returned unchanged. Search: every ``_CLIP_COARSE`` L* along the
-    boundary curve of the hue plane, then every ``_CLIP_FINE`` around the best.
+    boundary curve of the hue plane, then finer steps around the best.
     """
     lab = np.asarray(lab, dtype=np.float64)
     shape = lab.shape
@@ -274,14 +272,16 @@ def clip_to_gamut(gbd: GamutBoundary, lab: ArrayLike) -> NDArray[np.float64]:
     coarse = np.arange(lo, hi + 1e-9, _CLIP_COARSE)
     if coarse[-1] < hi:
         coarse = np.append(coarse, hi)
-    fine = np.arange(-_CLIP_COARSE, _CLIP_COARSE + 1e-9, _CLIP_FINE)
+    mid = np.arange(-_CLIP_COARSE, _CLIP_COARSE + 1e-9, _CLIP_MID)
+    fine = np.arange(-_CLIP_MID, _CLIP_MID + 1e-9, _CLIP_FINE)
     for s in range(0, out_idx.size, 8192):
         idx = out_idx[s : s + 8192]
         target = flat[idx]
         h = lab_to_lch(target)[:, 2]
         best_l = _best_on_boundary(gbd, target, h, np.broadcast_to(coarse, (idx.size, coarse.size)))
-        cand = np.clip(best_l[:, None] + fine[None, :], lo, hi)
-        best_l = _best_on_boundary(gbd, target, h, cand)
+        for offsets in (mid, fine):
+            cand = np.clip(best_l[:, None] + offsets[None, :], lo, hi)
+            best_l = _best_on_boundary(gbd, target, h, cand)
         c = np.nan_to_num(max_chroma(gbd, best_l, h), nan=0.0)
         flat[idx] = lch_to_lab(np.stack([best_l, np.maximum(c, 0.0), h], axis=-1))
     return flat.reshape(shape)
@@ -323,10 +323,9 @@ def map_perceptual(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | N
         r = (cs - knee) / (cd - knee)
         x = (c - knee) / (cs - knee)
         squeezed = knee + (cd - knee) * r * x / (1.0 + (r - 1.0) * x)
-    c_new = np.where(compress, squeezed, c)
-    c_new = np.where(cd > 0, c_new, 0.0)
+    c_new = np.minimum(np.where(compress, squeezed, c), cd)
     mapped = lch_to_lab(np.stack([l_dst, c_new, h], axis=-1))
-    return clip_to_gamut(gbd, _black_shift(gbd, l_src, mapped))
+    return _black_shift(gbd, l_src, mapped)
 
 
 def map_saturation(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | None = None) -> NDArray[np.float64]:
@@ -338,9 +337,9 @@ def map_saturation(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | N
     cs = np.nan_to_num(max_chroma(source, l_src, h), nan=0.0)
     cd = np.maximum(np.nan_to_num(max_chroma(gbd, l_dst, h), nan=0.0), 0.0)
     with np.errstate(divide="ignore", invalid="ignore"):
-        c_new = np.where(cs > 1e-6, c * cd / cs, c)
+        c_new = np.minimum(np.where(cs > 1e-6, c * cd / cs, c), cd)
     mapped = lch_to_lab(np.stack([l_dst, c_new, h], axis=-1))
-    return clip_to_gamut(gbd, _black_shift(gbd, l_src, mapped))
+    return _black_shift(gbd, l_src, mapped)
 
 
 def map_intent(gbd: GamutBoundary, lab: ArrayLike, intent: Intent | int) -> NDArray[np.float64]:

@@ -247,8 +247,37 @@ def _contract(q: NDArray[np.float64], weights: list[tuple[NDArray[np.float64], N
     return t  # (N, 3)
 
 
+def _ynsn_gradient(q: NDArray[np.float64], a: NDArray[np.float64]) -> NDArray[np.float64]:
+    """dS/da_i for all inks, shape (N, 3, k)."""
+    n, k = a.shape
+    if k == 4:
+        # Demichel weights of ink pairs, shared by the four derivatives: (N, 4) each.
+        f = np.stack([1.0 - a, a], axis=-1)  # (N, 4, 2)
+        p01 = (f[:, 0, :, None] * f[:, 1, None, :]).reshape(n, 4)
+        p23 = (f[:, 2, :, None] * f[:, 3, None, :]).reshape(n, 4)
+        dq = [np.diff(q, axis=i).reshape(8, 3) for i in range(4)]  # primaries with ink i minus without
+        out = np.empty((n, 3, 4))
+        out[:, :, 0] = (f[:, 1, :, None] * p23[:, None, :]).reshape(n, 8) @ dq[0]
+        out[:, :, 1] = (f[:, 0, :, None] * p23[:, None, :]).reshape(n, 8) @ dq[1]
+        out[:, :, 2] = (p01[:, :, None] * f[:, 3, None, :]).reshape(n, 8) @ dq[2]
+        out[:, :, 3] = (p01[:, :, None] * f[:, 2, None, :]).reshape(n, 8) @ dq[3]
+        return out
+    ones = np.ones(n)
+    out = np.empty((n, 3, k))
+    for i in range(k):
+        weights = [(1.0 - a[:, j], a[:, j]) if j != i else (-ones, ones) for j in range(k)]
+        out[:, :, i] = _contract(q, weights)
+    return out
+
+
 def _ynsn_sum(model: HalftoneModel, a: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
     q = model.primaries_xyz ** (1.0 / model.n)
+    if model.n_inks == 4:
+        n = len(a)
+        f = np.stack([1.0 - a, a], axis=-1)
+        p01 = (f[:, 0, :, None] * f[:, 1, None, :]).reshape(n, 4)
+        p23 = (f[:, 2, :, None] * f[:, 3, None, :]).reshape(n, 4)
+        return q, (p01[:, :, None] * p23[:, None, :]).reshape(n, 16) @ q.reshape(16, 3)
     weights = [(1.0 - a[:, i], a[:, i]) for i in range(model.n_inks)]
     return q, _contract(q, weights)
 
@@ -298,13 +327,11 @@ def device_to_lab_jacobian(
     scale = model.relative_scale if relative else np.ones(3)
     xyz = s**model.n * scale
     lab = xyz_to_lab(xyz)
-    # d XYZ / d a_i = n s^(n-1) dS/da_i * scale
-    dxyz = np.empty(d.shape[:1] + (3, k))
-    ones, zeros = np.ones(len(d)), np.zeros(len(d))
+    # d XYZ / d a_i = n s^(n-1) dS/da_i * scale; S is multilinear, so dS/da_i is S with
+    # ink i's weights (1 - a_i, a_i) replaced by (-1, +1).
     pref = model.n * s ** (model.n - 1.0) * scale
-    for i in range(k):
-        weights = [(1.0 - a[:, j], a[:, j]) if j != i else (-ones, ones) for j in range(k)]
-        dxyz[:, :, i] = pref * _contract(q, weights) * da_dt[:, i : i + 1]
+    ds = _ynsn_gradient(q, a)
+    dxyz = pref[:, :, None] * ds * da_dt[:, None, :]
     r = xyz / D50_XYZ  # absolute CIELAB is also taken against the PCS white D50 (ICC.1 convention)
     dfdr = np.where(r > _EPSILON, 1.0 / (3.0 * np.cbrt(np.maximum(r, _EPSILON)) ** 2), _KAPPA / 116.0) / D50_XYZ
     df = dfdr[:, :, None] * dxyz  # (N, 3 [fx, fy, fz], k)

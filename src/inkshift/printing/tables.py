@@ -27,15 +27,18 @@ from inkshift.color.convert import D50_XYZ, lab_to_xyz
 from inkshift.icc.encoding import legacy16_lab_grid
 from inkshift.icc.intent import Intent
 from inkshift.printing.conditions import Condition
-from inkshift.printing.gamut_mapping import clip_to_gamut, map_intent, printer_gamut_boundary
+from inkshift.printing.gamut_mapping import clip_to_gamut, in_gamut, map_intent, printer_gamut_boundary
 from inkshift.printing.neugebauer import HalftoneModel, device_to_lab, halftone_model
 from inkshift.printing.separation import print_black, separate
 
-__all__ = ["GAMUT_TOLERANCE_DE00", "GRAY_A2B_POINTS", "ProfileTables", "profile_tables", "relative_colorimetric"]
+__all__ = ["GAMUT_TOLERANCE_DE00", "GBD_MARGIN_CHROMA", "GRAY_A2B_POINTS", "ProfileTables", "profile_tables", "relative_colorimetric"]
 
 GAMUT_TOLERANCE_DE00 = 1.0
 """CIEDE2000 within which a colour counts as reproducible (in gamut): about one just noticeable
 difference under good viewing (common practice)."""
+GBD_MARGIN_CHROMA = 4.0
+"""Chroma by which a colour may lie outside the boundary descriptor and still be tried by the
+solver: larger than the descriptor's binning error (checked in tests/test_separation.py)."""
 GRAY_A2B_POINTS = 256
 """Entries of the one-dimensional A2B table of a one-ink condition."""
 
@@ -57,7 +60,7 @@ class ProfileTables:
 def relative_colorimetric(model: HalftoneModel, lab: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
     """Return device values for media-relative CIELAB by the relative intent, and the in-gamut test.
 
-    Each colour is first separated as it is; where the result misses it by more than
+    Each colour near or inside the gamut boundary descriptor is first separated as it is; where the result misses it by more than
     :data:`GAMUT_TOLERANCE_DE00`, the colour is out of gamut, is clipped onto the gamut
     boundary (hue-preserving minimum CIEDE2000) and separated again.
 
@@ -69,11 +72,17 @@ def relative_colorimetric(model: HalftoneModel, lab: NDArray[np.float64]) -> tup
     lab = np.asarray(lab, dtype=np.float64)
     shape = lab.shape[:-1]
     flat = lab.reshape(-1, 3)
-    first = separate(model, flat)
-    out = first.delta_e > GAMUT_TOLERANCE_DE00
-    device = first.device.copy()
+    gbd = printer_gamut_boundary(model)
+    # Only colours near or inside the boundary descriptor can be reproducible; the rest are
+    # out of gamut without asking the solver.
+    out = ~in_gamut(gbd, flat, GBD_MARGIN_CHROMA)
+    near = np.nonzero(~out)[0]
+    device = np.empty((len(flat), model.n_inks))
+    if near.size:
+        first = separate(model, flat[near])
+        device[near] = first.device
+        out[near] = first.delta_e > GAMUT_TOLERANCE_DE00
     if out.any():
-        gbd = printer_gamut_boundary(model)
         device[out] = separate(model, clip_to_gamut(gbd, flat[out])).device
     return device.reshape(shape + (model.n_inks,)), out.reshape(shape)
 
