@@ -27,8 +27,9 @@ absolute colorimetric
     ones with the media white point before it uses the table (ICC.1, 6.3.2).
 perceptual (B2A0)
     Lightness is scaled linearly from the PCS range (L* 0..100) to the print's
-    (L* of the print black .. 100) and the darkest colours are moved towards
-    the print black's a*, b*, so PCS black maps to the print black. Chroma is
+    (L* of the darkest neutral the print reproduces .. 100), so PCS black maps
+    to the print black (taken neutral, as black point detection in CMMs
+    does; a darker but coloured ink stack is not used as "black"). Chroma is
     compressed along constant hue from the source gamut (sRGB, the colour
     space of nearly every chart) onto the print gamut with a smooth knee:
     unchanged up to :data:`KNEE` times the print's maximum chroma, then the
@@ -58,13 +59,12 @@ from inkshift.color.difference import delta_e_2000
 from inkshift.color.vision import linear_srgb_to_lab, srgb_to_linear
 from inkshift.icc.intent import Intent
 from inkshift.printing.neugebauer import HalftoneModel, device_to_lab
-from inkshift.printing.separation import print_black
+from inkshift.printing.separation import neutral_black, print_black
 
 __all__ = [
     "L_STEP",
     "HUE_STEP",
     "KNEE",
-    "BLACK_SHIFT_FADE_L",
     "GamutBoundary",
     "boundary_from_samples",
     "printer_gamut_boundary",
@@ -84,9 +84,6 @@ HUE_STEP = 2.0
 KNEE = 0.8
 """Share of the print's maximum chroma kept unchanged by the perceptual intent (common practice:
 knee points of 0.7-0.9 are usual in chroma compression)."""
-BLACK_SHIFT_FADE_L = 50.0
-"""Source L* above which the perceptual intent no longer moves colours towards the print black's
-a*, b* (the shift fades quadratically from full at L* = 0)."""
 FACE2_STEPS = 97
 """Nodes per axis on each 2-D face of the ink-limited CMYK device box when sampling its boundary."""
 FACE3_STEPS = 21
@@ -102,7 +99,9 @@ _CLIP_FINE = 0.125  # L* step of the third pass, over one mid step either side
 class GamutBoundary:
     """Maximum chroma per (L*, hue) bin; NaN where the gamut has no colour.
 
-    ``cmax[i, j]`` belongs to L* = ``i * L_STEP`` and hue ``j * HUE_STEP``.
+    ``cmax[i, j]`` belongs to L* = ``i * L_STEP`` and hue ``j * HUE_STEP``. ``black`` is the
+    darkest neutral of the gamut (L*, 0, 0): the perceptual and saturation intents map
+    PCS black there.
     """
 
     cmax: NDArray[np.float64]
@@ -126,7 +125,7 @@ def boundary_from_samples(lab: ArrayLike, black: ArrayLike | None = None) -> Gam
     lab
         CIELAB samples, shape ``(..., 3)``.
     black
-        The gamut's darkest colour; the darkest sample when omitted.
+        The gamut's darkest neutral; the darkest sample's L* when omitted.
     """
     lch = lab_to_lch(np.asarray(lab, dtype=np.float64).reshape(-1, 3))
     grid = _empty_grid()
@@ -155,7 +154,7 @@ def boundary_from_samples(lab: ArrayLike, black: ArrayLike | None = None) -> Gam
         grid = np.where(np.isfinite(side) & (side > grid), side, grid)
     flat_lab = np.asarray(lab, dtype=np.float64).reshape(-1, 3)
     if black is None:
-        black = flat_lab[np.argmin(flat_lab[:, 0])]
+        black = np.array([flat_lab[:, 0].min(), 0.0, 0.0])
     black = np.asarray(black, dtype=np.float64)
     # The neutral axis from the black's lightness up to the lightest sample is inside the gamut.
     neutral_rows = (rows * L_STEP >= black[0]) & (rows * L_STEP <= flat_lab[:, 0].max() + 1e-9)
@@ -206,14 +205,14 @@ def _device_boundary_samples(n_inks: int, tac: float) -> NDArray[np.float64]:
 @lru_cache(maxsize=16)
 def printer_gamut_boundary(model: HalftoneModel) -> GamutBoundary:
     """Return the media-relative gamut boundary of a condition within its ink limit."""
-    black = print_black(model)[1]
+    black = np.array([neutral_black(model), 0.0, 0.0])
     if model.n_inks == 1:
         grid = _empty_grid()
         rows = np.arange(grid.shape[0]) * L_STEP
         grid[(rows >= np.ceil(black[0] / L_STEP) * L_STEP) & (rows <= 100.0)] = 0.0
         return GamutBoundary(cmax=grid, black=black)
     lab = device_to_lab(model, _device_boundary_samples(model.n_inks, model.tac))
-    return boundary_from_samples(np.concatenate([lab, black[None]]), black)
+    return boundary_from_samples(np.concatenate([lab, print_black(model)[1][None]]), black)
 
 
 @lru_cache(maxsize=1)
@@ -302,13 +301,6 @@ def _lightness_map(gbd: GamutBoundary, lab: NDArray[np.float64]) -> tuple[NDArra
     return l_src, lk + l_src * (100.0 - lk) / 100.0
 
 
-def _black_shift(gbd: GamutBoundary, l_src: NDArray[np.float64], lab: NDArray[np.float64]) -> NDArray[np.float64]:
-    w = np.clip(1.0 - l_src / BLACK_SHIFT_FADE_L, 0.0, 1.0) ** 2
-    out = lab.copy()
-    out[..., 1:] += w[..., None] * gbd.black[1:]
-    return out
-
-
 def map_perceptual(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | None = None) -> NDArray[np.float64]:
     """Return the perceptual-intent image of media-relative CIELAB colours (see the module docstring)."""
     lch = lab_to_lch(lab)
@@ -325,7 +317,7 @@ def map_perceptual(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | N
         squeezed = knee + (cd - knee) * r * x / (1.0 + (r - 1.0) * x)
     c_new = np.minimum(np.where(compress, squeezed, c), cd)
     mapped = lch_to_lab(np.stack([l_dst, c_new, h], axis=-1))
-    return _black_shift(gbd, l_src, mapped)
+    return mapped
 
 
 def map_saturation(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | None = None) -> NDArray[np.float64]:
@@ -339,7 +331,7 @@ def map_saturation(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | N
     with np.errstate(divide="ignore", invalid="ignore"):
         c_new = np.minimum(np.where(cs > 1e-6, c * cd / cs, c), cd)
     mapped = lch_to_lab(np.stack([l_dst, c_new, h], axis=-1))
-    return _black_shift(gbd, l_src, mapped)
+    return mapped
 
 
 def map_intent(gbd: GamutBoundary, lab: ArrayLike, intent: Intent | int) -> NDArray[np.float64]:

@@ -54,6 +54,7 @@ __all__ = [
     "Separation",
     "project_ink_limit",
     "print_black",
+    "neutral_black",
     "black_ramp",
     "black_rule",
     "separate",
@@ -127,6 +128,21 @@ def print_black(model: HalftoneModel) -> tuple[NDArray[np.float64], NDArray[np.f
     """Return the device values and media-relative CIELAB of the darkest colour within the ink limit."""
     dev, lab = _print_black_cached(model)
     return np.array(dev), np.array(lab)
+
+
+@lru_cache(maxsize=16)
+def neutral_black(model: HalftoneModel) -> float:
+    """Return the L* (media-relative) of the darkest neutral (a* = b* = 0) the condition reproduces.
+
+    Found by separating neutrals from the print black's L* upward in steps of 0.05 and keeping
+    the first that the inverse reaches within 0.05 CIEDE2000.
+    """
+    l_black = float(print_black(model)[1][0])
+    ls = np.arange(l_black, min(l_black + 30.0, 100.0), 0.05)
+    lab = np.zeros((ls.size, 3))
+    lab[:, 0] = ls
+    ok = separate(model, lab).delta_e <= 0.05
+    return float(ls[np.argmax(ok)]) if ok.any() else l_black
 
 
 def black_ramp(model: HalftoneModel, points: int = 1025) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
