@@ -96,6 +96,17 @@ def test_delta_e_2000_matches_colour_science_on_random_pairs() -> None:
         )
 
 
+def test_delta_e_2000_neutral_against_every_hue() -> None:
+    # Sharma et al. (2005) conventions for a zero chroma (h' = 0, Δh' = 0, h̄' = h1' + h2'),
+    # checked against colour.delta_E(method="CIE 2000").
+    hue = np.radians(np.arange(0.0, 360.0, 7.5))
+    other = np.stack([np.full_like(hue, 45.0), 30.0 * np.cos(hue), 30.0 * np.sin(hue)], axis=-1)
+    gray = np.array([55.0, 0.0, 0.0])
+    for lab1, lab2 in ((gray, other), (other, gray)):
+        expected = colour.delta_E(np.broadcast_to(lab1, other.shape), np.broadcast_to(lab2, other.shape), method="CIE 2000")
+        np.testing.assert_allclose(delta_e_2000(lab1, lab2), expected, rtol=1e-10)
+
+
 def test_delta_e_2000_lightness_weight_matches_colour_textiles() -> None:
     # colour-science's textiles=True is kL = 2, kC = kH = 1 (CIE 142-2001 parametric factors).
     lab1, lab2 = _random_lab(4, 2000), _random_lab(5, 2000)

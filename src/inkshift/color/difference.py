@@ -177,6 +177,7 @@ def delta_e_2000(
     # Eq. (14): mean hue h̄'.
     h_bar = h1p + h2p
     far = np.abs(h1p - h2p) > np.pi
+    far &= ~neutral  # with a zero chroma h̄' is the plain sum, never wrapped
     del h1p, h2p
     wrap = np.where(h_bar < _TWO_PI, _TWO_PI, -_TWO_PI)
     np.add(h_bar, wrap, out=h_bar, where=far)
