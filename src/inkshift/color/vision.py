@@ -32,6 +32,7 @@ inverse of the RGB -> XYZ matrix rather than the standard's rounded one.
 from __future__ import annotations
 
 import math
+import warnings
 from functools import lru_cache
 from typing import Final
 
@@ -82,7 +83,9 @@ _SEVERITY_STEPS: Final[int] = 10  # the published matrices are 0.1 apart
 @lru_cache(maxsize=None)
 def _published_table(key: str) -> NDArray[np.float64]:
     """The published matrices of one deficiency, stacked (11, 3, 3) by severity 0, 0.1, ..., 1."""
-    from colour.blindness import CVD_MATRICES_MACHADO2010
+    with warnings.catch_warnings():  # colour-science warns on import about optional plotting packages
+        warnings.simplefilter("ignore")
+        from colour.blindness import CVD_MATRICES_MACHADO2010
 
     table = CVD_MATRICES_MACHADO2010[key]
     grid = sorted(table)
