@@ -109,7 +109,14 @@ def test_kind_is_case_insensitive_and_matrix_is_a_copy() -> None:
 
 @pytest.mark.parametrize(
     ("kind", "severity"),
-    [("colourblind", 1.0), ("protanopia", 0.5), ("deuteranomaly", 1.5), ("tritanomaly", -0.1), ("protanomaly", float("nan")), ("protanomaly", "strong")],
+    [
+        ("colourblind", 1.0),
+        ("protanopia", 0.5),
+        ("deuteranomaly", 1.5),
+        ("tritanomaly", -0.1),
+        ("protanomaly", float("nan")),
+        ("protanomaly", "strong"),
+    ],
 )
 def test_bad_input_raises_project_error(kind: str, severity: float) -> None:
     with pytest.raises(InputError) as info:
