@@ -143,14 +143,21 @@ def eval_curve(curve: Curve, x: ArrayLike) -> NDArray[np.float64]:
     elif curve.kind == "gamma":
         y = np.power(x, curve.gamma)
     elif curve.kind == "table":
-        t = curve.table
-        y = np.interp(x, np.linspace(0.0, 1.0, len(t)), t)
+        y = _interp_uniform(curve.table, x)
     else:
         g, a, b, c, d, e, f = _parametric_form(curve)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             upper = np.power(np.maximum(a * x + b, 0.0), g) + e
         y = np.where(x >= d, upper, c * x + f)
     return np.clip(np.nan_to_num(y, nan=0.0), 0.0, 1.0)
+
+
+def _interp_uniform(table: NDArray[np.float64], x: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Linear interpolation in a table of equally spaced entries over 0..1 (x already in 0..1)."""
+    pos = x * (len(table) - 1)
+    i = np.minimum(pos.astype(np.intp), len(table) - 2)
+    f = pos - i
+    return table[i] * (1.0 - f) + table[i + 1] * f
 
 
 def invert_curve(curve: Curve, y: ArrayLike) -> NDArray[np.float64]:
@@ -227,7 +234,7 @@ def interpolate_clut(clut: Clut, x: ArrayLike, method: str = "tetrahedral") -> N
         if tetra:
             value = _tetrahedral(table, offset, frac[:, -3:], step[-3:])
         else:
-            value = table[offset]
+            value = table.take(offset, axis=0)
         out += weight[:, None] * value
     return out
 
@@ -235,18 +242,27 @@ def interpolate_clut(clut: Clut, x: ArrayLike, method: str = "tetrahedral") -> N
 def _tetrahedral(
     table: NDArray[np.float64], base: NDArray[np.intp], frac: NDArray[np.float64], step: NDArray[np.intp]
 ) -> NDArray[np.float64]:
-    """Tetrahedral interpolation in a 3-D cell: walk from the base corner along axes by decreasing fraction."""
-    order = np.argsort(-frac, axis=1, kind="stable")
-    fs = np.take_along_axis(frac, order, axis=1)
-    s = step[order]
-    c1 = base + s[:, 0]
-    c2 = c1 + s[:, 1]
-    c3 = c2 + s[:, 2]
+    """Tetrahedral interpolation in a 3-D cell: walk from the base corner along the axes by decreasing fraction.
+
+    The corners visited are base, base + step[largest], base + all steps but
+    step[smallest], and the far corner; their weights are the differences of
+    the sorted fractions.
+    """
+    fx, fy, fz = frac[:, 0], frac[:, 1], frac[:, 2]
+    # On ties these choices never name the same axis twice, which is all the walk needs.
+    largest = np.where((fx >= fy) & (fx >= fz), 0, np.where(fy >= fz, 1, 2))
+    smallest = np.where((fz <= fx) & (fz <= fy), 2, np.where(fy <= fx, 1, 0))
+    f_max = np.take_along_axis(frac, largest[:, None], axis=1)
+    f_min = np.take_along_axis(frac, smallest[:, None], axis=1)
+    f_mid = frac.sum(axis=1, keepdims=True) - f_max - f_min
+    total = int(step.sum())
+    c1 = base + step[largest]
+    c2 = base + (total - step[smallest])
     return (
-        (1.0 - fs[:, :1]) * table[base]
-        + (fs[:, :1] - fs[:, 1:2]) * table[c1]
-        + (fs[:, 1:2] - fs[:, 2:3]) * table[c2]
-        + fs[:, 2:3] * table[c3]
+        (1.0 - f_max) * table.take(base, axis=0)
+        + (f_max - f_mid) * table.take(c1, axis=0)
+        + (f_mid - f_min) * table.take(c2, axis=0)
+        + f_min * table.take(base + total, axis=0)
     )
 
 
