@@ -237,3 +237,32 @@ def test_unusable_files_give_one_line(tmp_path, content: bytes | None, problem: 
 def test_directory_is_refused(tmp_path) -> None:
     with pytest.raises(InputError, match="not a regular file"):
         read_color_file(tmp_path)
+
+
+def test_csv_from_a_spreadsheet_with_bom_and_crlf(tmp_path) -> None:
+    # Spreadsheet programs often write a UTF-8 byte-order mark and CRLF line ends.
+    path = tmp_path / "brand.csv"
+    path.write_bytes("\ufeffName,Hex\r\nPrimary,#0050A0\r\n".encode("utf-8"))
+    (spec,) = read_color_file(path)
+    assert spec.name == "Primary" and rgb(spec) == [0, 80, 160]
+
+
+def test_tsv(tmp_path) -> None:
+    path = tmp_path / "brand.tsv"
+    path.write_text("name\tcolor\nA, with comma\trgb(0, 80, 160)\n", encoding="utf-8")
+    (spec,) = read_color_file(path)
+    assert spec.name == "A, with comma" and rgb(spec) == [0, 80, 160]
+
+
+def test_csv_header_only_has_no_colours(tmp_path) -> None:
+    path = tmp_path / "empty.csv"
+    path.write_text("name,color\n", encoding="utf-8")
+    with pytest.raises(InputError, match="contains no colours"):
+        read_color_file(path)
+
+
+def test_csv_empty_colour_cell_names_the_line(tmp_path) -> None:
+    path = tmp_path / "gap.csv"
+    path.write_text("name,color\na,#000\nb,\n", encoding="utf-8")
+    with pytest.raises(InputError, match=r"gap\.csv: line 3: the color cell is empty"):
+        read_color_file(path)

@@ -24,7 +24,7 @@ from typer.testing import CliRunner
 
 from conftest import require_file
 from inkshift.cautions import HARD_PROOF, SHIPPED_PROFILE
-from inkshift.cli import app
+from inkshift.cli import app, main
 from inkshift.color.convert import D50_XYZ, xyz_to_lab
 from inkshift.color.difference import delta_e_2000
 from inkshift.colorlist import parse_named_color
@@ -268,17 +268,31 @@ def _run_cli(*args: str, cwd) -> subprocess.CompletedProcess:
     )
 
 
-def test_command_errors_are_one_line_exit_2(tmp_path) -> None:
+def test_command_bad_file_line_in_a_subprocess(tmp_path) -> None:
+    # Acceptance: as a user runs it, a bad line gives exit 2 and one line naming it.
     bad = tmp_path / "brand.csv"
     bad.write_text("name,color\nok,#000000\nbroken,lab(50 a 3)\n", encoding="utf-8")
-    for args, expected in (
-        (["swatches", "--file", str(bad)], f"{bad}: line 3: 'lab(50 a 3)' is not a colour"),
+    proc = _run_cli("swatches", "--file", str(bad), cwd=tmp_path)
+    assert proc.returncode == 2, proc.stderr
+    assert "Traceback" not in proc.stderr
+    assert proc.stderr == f"inkshift: error: {bad}: line 3: 'lab(50 a 3)' is not a colour: 'a' is not a number\n"
+    assert proc.stdout == ""
+
+
+@pytest.mark.parametrize(
+    "args, expected",
+    [
         (["swatches"], "no colours given"),
         (["swatches", "#000", "--profile", "no-such-profile"], "no-such-profile"),
         (["swatches", "#00"], "'#00' is not a colour"),
-    ):
-        proc = _run_cli(*args, cwd=tmp_path)
-        assert proc.returncode == 2, (args, proc.stderr)
-        assert "Traceback" not in proc.stderr
-        assert proc.stderr.count("\n") == 1 and expected in proc.stderr, proc.stderr
-        assert proc.stdout == ""
+        (["swatches", "#000", "--intent", "vivid"], "unknown rendering intent 'vivid'"),
+        (["swatches", "#000", "--gamut-tolerance", "0"], "--gamut-tolerance"),
+    ],
+)
+def test_command_errors_are_one_line_exit_2(args, expected, monkeypatch, capsys) -> None:
+    monkeypatch.setattr(sys, "argv", ["inkshift", *args])
+    with pytest.raises(SystemExit) as info:
+        main()
+    assert info.value.code == 2
+    out, err = capsys.readouterr()
+    assert out == "" and err.count("\n") == 1 and err.startswith("inkshift: error: ") and expected in err
