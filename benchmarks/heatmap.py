@@ -6,7 +6,8 @@ Prints the median wall time of :func:`inkshift.report.heatmap.heatmap_overlay`,
 its rate in megapixels per second, and the process's peak resident memory
 above the inputs (Linux /proc: VmHWM after resetting it through clear_refs),
 with ratios to two floors: the time Pillow takes just to copy the input into an
-image, and the bytes of the output image itself.
+image, and the bytes of the output image itself; then the time of the
+side-by-side previews of the same input.
 """
 
 from __future__ import annotations
@@ -21,6 +22,7 @@ import numpy as np
 from PIL import Image
 
 from inkshift.report.heatmap import heatmap_overlay
+from inkshift.report.sheets import side_by_side
 
 
 def _status_kb(key: str) -> int:
@@ -96,6 +98,11 @@ def main() -> None:
     else:
         print(f"peak RSS (cannot reset on this system): {peak_kb / 1024:.0f} MB, inputs at {base_kb / 1024:.0f} MB")
     print(f"peak numpy working memory (tracemalloc): {traced_peak / 2**20:.0f} MB")
+    del img
+    t0 = time.perf_counter()
+    side_by_side(rgb, rgb, [])
+    t_sbs = time.perf_counter() - t0
+    print(f"side_by_side previews of the same input (LANCZOS to 2400 px): {t_sbs:.2f} s; ratio to floor {t_sbs / tf:.1f}x")
 
 
 if __name__ == "__main__":
