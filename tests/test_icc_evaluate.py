@@ -44,9 +44,7 @@ ICC = "/usr/share/color/icc"
 GS = "/usr/share/color/icc/ghostscript"
 DEFAULT_CMYK = f"{GS}/default_cmyk.icc"
 
-# LittleCMS's Lab D50 profile (cmsCreateLab2Profile(NULL), white exactly D50).
-# inkshift.icc.cms.lab_profile() asks for a 5000 K white, which is not D50 and
-# would shift ICC-absolute results; the comparison needs the D50 one.
+# LittleCMS's Lab profile with its default D50 white (Pillow createProfile("LAB")).
 LAB_D50 = ImageCms.ImageCmsProfile(ImageCms.createProfile("LAB"))
 
 N_COLOURS = 10_000

@@ -98,9 +98,11 @@ def test_show_text_cmyk_lists_the_ink_limit() -> None:
 
 
 def _run(*args: str) -> subprocess.CompletedProcess:
-    # -W ignore: colour-science, imported by other commands' modules, warns on stderr
-    # that matplotlib is missing; that line is not the command's output.
-    return subprocess.run([sys.executable, "-W", "ignore", "-m", "inkshift", *args],
+    # The console script's entry point (pyproject: inkshift = "inkshift.cli:main") in a
+    # fresh interpreter. -W ignore: colour-science, imported by other commands' modules,
+    # warns on stderr that matplotlib is missing; that line is not the command's output.
+    code = "import sys; from inkshift.cli import main; sys.argv[0] = 'inkshift'; main()"
+    return subprocess.run([sys.executable, "-W", "ignore", "-c", code, *args],
                           capture_output=True, text=True, timeout=120)
 
 

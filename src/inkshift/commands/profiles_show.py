@@ -49,7 +49,7 @@ def format_summary(summary: dict[str, Any]) -> str:
         ("description", summary["description"] or "-"),
         ("copyright", summary["copyright"] or "-"),
         ("class", f"{summary['class_name']} ({summary['class']})"),
-        ("colour space", f"{summary['color_space']} ({summary['channels']} channels)"),
+        ("colour space", f"{summary['color_space']} ({summary['channels']} channel{'s' if summary['channels'] != 1 else ''})"),
         ("PCS", summary["pcs"]),
         ("ICC version", summary["version"]),
         ("header intent", summary["header_intent"]),
