@@ -255,3 +255,17 @@ def test_cli_bad_input_exits_2_with_one_line() -> None:
     assert proc.returncode == 2
     lines = proc.stderr.strip().splitlines()
     assert len(lines) == 1 and "is not a colour" in lines[0], proc.stderr
+
+
+def test_cli_help_states_the_library_defaults() -> None:
+    # The command leaves the limits to the library (None = default); its help must quote them.
+    import typer.main
+
+    from inkshift.ramp import DEFAULT_STRIP_STEPS, RAMP_REVERSAL_DELTA_L
+
+    command = typer.main.get_command(app).commands["ramp"]  # type: ignore[attr-defined]
+    helps = {p.name: p.help for p in command.params}
+    assert f"(default {RAMP_STEP_DELTA_E:g})" in helps["step_threshold"]
+    assert f"(default {RAMP_GRAY_STEP_DELTA_L:g})" in helps["gray_step_threshold"]
+    assert f"(default {RAMP_REVERSAL_DELTA_L:g})" in helps["reversal_tolerance"]
+    assert f"(default {DEFAULT_STRIP_STEPS})" in helps["steps"]

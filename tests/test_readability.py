@@ -109,8 +109,9 @@ def test_gray_lightness_matches_littlecms(office_gray) -> None:
     device = transform_colors(_rgb8(hexes), srgb_profile(), office_gray, "RGB", "L", Intent.RELATIVE, bpc=True)
     lab8 = transform_colors(device, office_gray, lab_profile(), "L", "LAB", Intent.RELATIVE, optimise=False)
     lcms_l = lab8[:, 0].astype(np.float64) * 100.0 / 255.0
-    # One 8-bit Lab code is 0.39 L*; the float evaluator and LittleCMS differ by a little more.
-    np.testing.assert_allclose(result.gray_lightness, lcms_l, atol=0.8)
+    # LittleCMS rounds L* to 8-bit codes of 0.39: half a code plus a margin (measured: at
+    # most 0.20 over 2000 random sRGB colours).
+    np.testing.assert_allclose(result.gray_lightness, lcms_l, atol=0.3)
 
 
 def test_gray_result_to_dict_is_json(office_gray) -> None:
