@@ -1,0 +1,230 @@
+"""Unique colours of an 8-bit image, with counts and the pixel-to-colour index.
+
+Everything costly in a proof runs once per unique colour and is mapped back to
+the pixels with :func:`expand`. A chart of tens of megapixels usually has a few
+hundred to a few hundred thousand distinct colours, so this is where the time
+goes to nothing or to everything.
+
+Method. Each pixel's channels are packed into one integer key, most significant
+channel first (RGB -> ``r << 16 | g << 8 | b``; CMYK -> 32 bits; GRAY -> 8 bits),
+so that ascending keys are the lexicographic order of the colour rows (the
+order ``np.unique(..., axis=0)`` returns). For keys of up to 24 bits the unique
+set is found by marking a table over the whole key space (2**24 booleans,
+16 MB) instead of sorting: marking and the later table look-up are linear in
+the pixel count, a sort is not. The look-up writes the colour index over the
+key array in place, so the extra memory is the 4-byte key per pixel (which
+becomes the returned ``inverse``) plus the two tables (16 MB + 64 MB for RGB).
+For 32-bit CMYK keys the two 16-bit halves are ranked separately by the same
+table method and combined into a dense key; only when that dense space is too
+large does it fall back to ``np.unique``'s sort. ``benchmarks/unique_colors.py``
+measures both routes.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+__all__ = ["UniqueColors", "unique_colors", "pack_colors", "expand", "MAX_TABLE_BITS"]
+
+MAX_TABLE_BITS = 24
+"""Largest key space (bits) ranked by a direct table: 2**24 int32 = 64 MB, the
+RGB cube. Larger keys are compacted first (see the module docstring)."""
+
+_CHUNK = 1 << 20  # pixels per step of the chunked loops (4 MB of keys)
+_SORT_BELOW = 1 << 16  # fewer keys than this are ranked by np.unique's sort
+_RUN_GAIN = 4  # use the run route when runs are at most a quarter of the pixels
+
+
+@dataclass(frozen=True)
+class UniqueColors:
+    """The distinct colours of an image.
+
+    Attributes
+    ----------
+    colors
+        ``(N, C)`` uint8, in ascending key order (lexicographic by channel).
+    counts
+        ``(N,)`` int64, pixels of each colour.
+    inverse
+        ``(H*W,)`` int32, index into ``colors`` of each pixel (row-major).
+    keys
+        ``(N,)`` uint32, the packed key of each colour (see :func:`pack_colors`).
+    shape
+        ``(H, W)`` of the image.
+    """
+
+    colors: NDArray[np.uint8]
+    counts: NDArray[np.int64]
+    inverse: NDArray[np.int32]
+    keys: NDArray[np.uint32]
+    shape: tuple[int, int]
+
+    def __len__(self) -> int:
+        return int(self.colors.shape[0])
+
+
+def pack_colors(colors: ArrayLike) -> NDArray[np.uint32]:
+    """Pack 8-bit colours (``(..., C)``, C <= 4) into uint32 keys, first channel highest.
+
+    Written byte by byte into a little-endian uint32 view, so no wider
+    temporary array is made.
+    """
+    colors = np.asarray(colors)
+    if colors.dtype != np.uint8 or colors.ndim < 1 or not 1 <= colors.shape[-1] <= 4:
+        raise ValueError(f"pack_colors needs (..., C<=4) uint8 colours, got {colors.dtype} {colors.shape}")
+    lead = colors.shape[:-1]
+    c = colors.shape[-1]
+    flat = colors.reshape(-1, c)
+    keys = np.zeros(flat.shape[0], dtype="<u4")
+    as_bytes = keys.view(np.uint8).reshape(-1, 4)
+    for ch in range(c):
+        as_bytes[:, c - 1 - ch] = flat[:, ch]
+    return keys.astype(np.uint32, copy=False).reshape(lead)
+
+
+def _unpack(keys: NDArray[np.uint32], c: int) -> NDArray[np.uint8]:
+    as_bytes = np.ascontiguousarray(keys, dtype="<u4").view(np.uint8).reshape(-1, 4)
+    return np.ascontiguousarray(as_bytes[:, c - 1 :: -1] if c > 0 else as_bytes[:, :0])
+
+
+def _rank_in_place(keys: NDArray, bits: int) -> tuple[NDArray[np.int64], NDArray[np.int32]]:
+    """Replace ``keys`` (uint32, < 2**bits) by the rank of each among the distinct keys.
+
+    Returns the sorted distinct keys and ``keys`` reinterpreted as int32 ranks.
+    Works in chunks so that each step's temporaries stay small and in cache.
+    """
+    present = np.zeros(1 << bits, dtype=bool)
+    for s in range(0, keys.size, _CHUNK):
+        present[keys[s : s + _CHUNK]] = True
+    distinct = np.flatnonzero(present)
+    del present
+    table = np.zeros(1 << bits, dtype=np.int32)
+    table[distinct] = np.arange(distinct.size, dtype=np.int32)
+    ranks = keys.view(np.int32)
+    for s in range(0, keys.size, _CHUNK):
+        # mode="clip" with out= writes straight into the key buffer (each element
+        # is read before it is overwritten); every key is < 2**bits, so the clip
+        # never changes a value.
+        np.take(table, keys[s : s + _CHUNK], out=ranks[s : s + _CHUNK], mode="clip")
+    return distinct, ranks
+
+
+def _rank(keys: NDArray[np.uint32], bits: int) -> tuple[NDArray[np.uint32], NDArray[np.int32]]:
+    """Distinct keys (ascending) and the int32 rank of every key, overwriting ``keys``."""
+    if keys.size < _SORT_BELOW:
+        # Few keys: sorting them is cheaper than clearing a 2**bits table.
+        distinct, ranks = np.unique(keys, return_inverse=True)
+        return distinct.astype(np.uint32), ranks.reshape(-1).astype(np.int32)
+    if bits <= MAX_TABLE_BITS:
+        distinct, ranks = _rank_in_place(keys, bits)
+        return distinct.astype(np.uint32), ranks
+    return _rank_wide(keys)
+
+
+def _counts(ranks: NDArray[np.int32], n: int) -> NDArray[np.int64]:
+    counts = np.zeros(n, dtype=np.int64)
+    for s in range(0, ranks.size, _CHUNK):
+        counts += np.bincount(ranks[s : s + _CHUNK], minlength=n)
+    return counts
+
+
+def unique_colors(pixels: ArrayLike) -> UniqueColors:
+    """Return the distinct colours of ``pixels`` with counts and the per-pixel index.
+
+    Parameters
+    ----------
+    pixels
+        ``(H, W, C)`` uint8 with C in 1..4 (GRAY, RGB, CMYK).
+
+    Returns
+    -------
+    UniqueColors
+        Equal to ``np.unique(pixels.reshape(-1, C), axis=0, return_inverse=True,
+        return_counts=True)``, in the same order.
+
+    Notes
+    -----
+    Charts are mostly long runs of one colour along a row, so the pixels are
+    first reduced to runs (one key per run of equal keys); the ranking then
+    works on the runs and ``np.repeat`` spreads the ranks back. When runs are
+    not much fewer than pixels (noise, photographs) the keys are ranked directly.
+    """
+    pixels = np.asarray(pixels)
+    if pixels.dtype != np.uint8 or pixels.ndim != 3 or not 1 <= pixels.shape[2] <= 4:
+        raise ValueError(f"unique_colors needs (H, W, C<=4) uint8 pixels, got {pixels.dtype} {pixels.shape}")
+    h, w, c = pixels.shape
+    n = h * w
+    bits = 8 * c
+    keys = pack_colors(pixels).reshape(-1)
+    starts = _run_starts(keys)
+    if starts.size <= n // _RUN_GAIN:
+        run_keys = keys[starts]
+        lengths = np.diff(np.append(starts, n))
+        del keys
+        ukeys, run_rank = _rank(run_keys, bits)
+        counts = np.bincount(run_rank, weights=lengths, minlength=ukeys.size).astype(np.int64)
+        inverse = np.repeat(run_rank, lengths)
+    else:
+        del starts
+        ukeys, inverse = _rank(keys, bits)
+        counts = _counts(inverse, ukeys.size)
+    return UniqueColors(
+        colors=_unpack(ukeys, c),
+        counts=counts,
+        inverse=inverse,
+        keys=ukeys,
+        shape=(h, w),
+    )
+
+
+def _run_starts(keys: NDArray[np.uint32]) -> NDArray[np.intp]:
+    """Indices where a new run of equal keys begins (always including 0)."""
+    change = np.empty(keys.size, dtype=bool)
+    if keys.size:
+        change[0] = True
+        np.not_equal(keys[1:], keys[:-1], out=change[1:])
+    return np.flatnonzero(change)
+
+
+def _rank_wide(keys: NDArray[np.uint32]) -> tuple[NDArray[np.uint32], NDArray[np.int32]]:
+    """Rank 32-bit keys: rank both 16-bit halves by table, then the dense pair key."""
+    hi = (keys >> 16).astype(np.uint32)
+    lo = (keys & 0xFFFF).astype(np.uint32)
+    hi_keys, hi_rank = _rank_in_place(hi, 16)
+    lo_keys, lo_rank = _rank_in_place(lo, 16)
+    n_lo = lo_keys.size
+    if hi_keys.size * n_lo <= (1 << MAX_TABLE_BITS):
+        # Dense key hi_rank * n_lo + lo_rank keeps the order of the original keys.
+        dense = hi_rank.astype(np.uint32) * np.uint32(n_lo) + lo_rank.astype(np.uint32)
+        del hi, lo, hi_rank, lo_rank
+        bits = max(1, int(hi_keys.size * n_lo - 1).bit_length())
+        distinct, inverse = _rank_in_place(dense, bits)
+        ukeys = (hi_keys[distinct // n_lo].astype(np.uint32) << 16) | lo_keys[distinct % n_lo].astype(np.uint32)
+        return ukeys, inverse
+    ukeys, inverse = np.unique(keys, return_inverse=True)
+    return ukeys.astype(np.uint32), inverse.reshape(-1).astype(np.int32)
+
+
+def expand(values_per_color: ArrayLike, inverse: ArrayLike, shape: tuple[int, ...]) -> NDArray:
+    """Map per-colour values back to pixels with one ``np.take``.
+
+    Parameters
+    ----------
+    values_per_color
+        ``(N, ...)`` values, one row per unique colour.
+    inverse
+        ``(H*W,)`` colour index of each pixel (``UniqueColors.inverse``).
+    shape
+        ``(H, W)`` of the image.
+
+    Returns
+    -------
+    ndarray
+        ``shape + values_per_color.shape[1:]``.
+    """
+    values = np.asarray(values_per_color)
+    out = np.take(values, np.asarray(inverse), axis=0)
+    return out.reshape(tuple(shape) + values.shape[1:])

@@ -1,0 +1,104 @@
+"""Unique colours: checked against numpy's own np.unique (sort-based reference)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from hypothesis.extra.numpy import arrays
+
+from inkshift.chart.unique import UniqueColors, expand, pack_colors, unique_colors
+
+
+def _reference(pixels: np.ndarray):
+    c = pixels.shape[2]
+    # Rows viewed as one opaque item each (what np.unique(axis=0) does inside,
+    # without its per-call overhead on large inputs).
+    rows = np.ascontiguousarray(pixels.reshape(-1, c)).view(np.dtype((np.void, c))).reshape(-1)
+    items, inverse, counts = np.unique(rows, return_inverse=True, return_counts=True)
+    colors = items.view(np.uint8).reshape(-1, c)
+    return colors, inverse.reshape(-1), counts
+
+
+def _check(pixels: np.ndarray) -> UniqueColors:
+    u = unique_colors(pixels)
+    colors, inverse, counts = _reference(pixels)
+    np.testing.assert_array_equal(u.colors, colors)
+    np.testing.assert_array_equal(u.inverse, inverse)
+    np.testing.assert_array_equal(u.counts, counts)
+    assert u.colors.dtype == np.uint8
+    assert u.inverse.dtype == np.int32
+    assert u.counts.dtype == np.int64
+    assert u.shape == pixels.shape[:2]
+    # Round trip: one np.take rebuilds the image exactly.
+    np.testing.assert_array_equal(expand(u.colors, u.inverse, u.shape), pixels)
+    return u
+
+
+@pytest.mark.parametrize("channels", [1, 3, 4])
+def test_matches_np_unique_noise(channels):
+    # Every pixel differs from its neighbour and there are more than 2**16
+    # pixels: the direct table route (no runs, no small-input sort).
+    rng = np.random.default_rng(1)
+    _check(rng.integers(0, 256, (300, 301, channels), dtype=np.uint8))
+
+
+@pytest.mark.parametrize("channels", [1, 3, 4])
+def test_matches_np_unique_runs(channels):
+    # Long runs of one colour, as in charts: the run route.
+    rng = np.random.default_rng(2)
+    base = rng.integers(0, 6, (20, 9, channels), dtype=np.uint8) * 50
+    _check(np.repeat(base, 12, axis=1))
+    # More than 2**16 runs: the runs are ranked by the table.
+    many = rng.integers(0, 256, (170, 400, channels), dtype=np.uint8)
+    _check(np.repeat(many, 4, axis=1))
+
+
+def test_cmyk_with_many_colours_uses_the_sort_fallback_correctly():
+    # > 4096 distinct values in both 16-bit halves: the dense key space would
+    # exceed 2**24, so the CMYK route falls back to np.unique; results must agree.
+    rng = np.random.default_rng(3)
+    _check(rng.integers(0, 256, (300, 300, 4), dtype=np.uint8))
+
+
+def test_pack_colors_is_most_significant_channel_first():
+    # Reference: the arithmetic definition r * 65536 + g * 256 + b.
+    rng = np.random.default_rng(4)
+    c = rng.integers(0, 256, (1000, 3), dtype=np.uint8)
+    ref = c[:, 0].astype(np.uint64) * 65536 + c[:, 1].astype(np.uint64) * 256 + c[:, 2]
+    np.testing.assert_array_equal(pack_colors(c), ref)
+    k = rng.integers(0, 256, (1000, 4), dtype=np.uint8)
+    ref4 = ((k[:, 0].astype(np.uint64) * 256 + k[:, 1]) * 256 + k[:, 2]) * 256 + k[:, 3]
+    np.testing.assert_array_equal(pack_colors(k), ref4)
+    u = unique_colors(c.reshape(10, 100, 3))
+    np.testing.assert_array_equal(u.keys, np.unique(ref))
+
+
+def test_expand_maps_per_colour_vectors():
+    pixels = np.array([[[0, 0, 0], [9, 9, 9]], [[9, 9, 9], [0, 0, 0]]], np.uint8)
+    u = unique_colors(pixels)
+    values = np.array([[1.5, 2.5], [3.5, 4.5]])  # per colour: black, then gray 9
+    out = expand(values, u.inverse, u.shape)
+    assert out.shape == (2, 2, 2)
+    np.testing.assert_array_equal(out[0, 0], [1.5, 2.5])
+    np.testing.assert_array_equal(out[0, 1], [3.5, 4.5])
+
+
+def test_rejects_wrong_input():
+    with pytest.raises(ValueError):
+        unique_colors(np.zeros((4, 4, 3), np.uint16))
+    with pytest.raises(ValueError):
+        unique_colors(np.zeros((4, 4), np.uint8))
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    arrays(
+        np.uint8,
+        st.tuples(st.integers(1, 12), st.integers(1, 12), st.sampled_from([1, 3, 4])),
+        elements=st.sampled_from([0, 1, 127, 128, 254, 255]),
+    )
+)
+def test_property_equals_np_unique(pixels):
+    _check(pixels)
