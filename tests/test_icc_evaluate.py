@@ -345,6 +345,8 @@ def test_shapes_and_wrong_channel_counts() -> None:
         device_to_lab(profile, np.zeros((10, 4)))
     with pytest.raises(InputError):
         lab_to_device(profile, np.zeros(2))
+    with pytest.raises(InputError, match="finite"):
+        lab_to_device(profile, [[50.0, np.nan, 0.0]])
 
 
 # --- round trips (hypothesis) --------------------------------------------------------

@@ -50,8 +50,6 @@ __all__ = [
     "absolute_white",
 ]
 
-_TYPE_NAMES = {"lut8": "lut8", "lut16": "lut16", "lutAtoB": "lutAtoB", "lutBtoA": "lutBtoA"}
-
 
 def available_tables(profile: Profile) -> dict[str, str]:
     """Return the profile's transforms as ``{"A2B0": "lut16", ...}``.
@@ -143,6 +141,8 @@ def _as_colours(profile: Profile, values: ArrayLike, n: int, what: str) -> NDArr
     arr = np.asarray(values, dtype=np.float64)
     if arr.ndim == 0 or arr.shape[-1] != n:
         raise InputError(f"{profile.source}: {what} values need a last axis of {n}, got shape {arr.shape}")
+    if not np.isfinite(arr).all():
+        raise InputError(f"{profile.source}: {what} values must be finite numbers (got NaN or infinity)")
     return arr
 
 
