@@ -26,12 +26,12 @@ Common practice: print buyers accept about 2-3 ΔE00 between proof and press for
 flat colours; 3 marks the point where a reader comparing screen and print sees
 a different colour."""
 
-DISTINCT_DELTA_E = 10.0
-"""ΔE00 on screen above which two palette colours are 'clearly distinct'.
-Common practice for category colours of small chart marks, which need well
-over the patch JND to be told apart at a glance (from memory: studies of mark
-colour difference in visualisation put the 50 %-discrimination point for thin
-marks around 5-10 ΔE)."""
+DISTINCT_DELTA_E = 8.0
+"""ΔE00 on screen from which two palette colours count as 'clearly distinct'.
+Common practice for category colours of chart marks, which need several times
+the patch JND to be told apart at a glance (from memory: studies of mark
+colour difference in visualisation put reliable discrimination of small
+marks at several ΔE units, growing as marks get smaller)."""
 
 MERGE_DELTA_E = 5.0
 """ΔE00 in print below which two clearly distinct screen colours 'merge'.

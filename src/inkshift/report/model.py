@@ -25,6 +25,7 @@ __all__ = [
     "ProofMaps",
     "CheckReport",
     "rgb_hex",
+    "hex_rgb",
 ]
 
 CHECK_SCHEMA = "inkshift.check/1"
@@ -35,6 +36,11 @@ def rgb_hex(rgb: NDArray[np.uint8] | tuple[int, int, int]) -> str:
     """Return ``#rrggbb`` for an 8-bit RGB triple."""
     r, g, b = (int(v) for v in rgb)
     return f"#{r:02x}{g:02x}{b:02x}"
+
+
+def hex_rgb(hex_: str) -> NDArray[np.uint8]:
+    """Return the 8-bit RGB triple of a ``#rrggbb`` string."""
+    return np.array([int(hex_[i : i + 2], 16) for i in (1, 3, 5)], np.uint8)
 
 
 def _round(values: Any, digits: int = 2) -> Any:
@@ -159,6 +165,14 @@ class CheckReport:
     extra: dict[str, Any] = field(default_factory=dict)
     outputs: dict[str, str] = field(default_factory=dict)
     maps: ProofMaps | None = field(default=None, repr=False)
+    unique: Any = field(default=None, repr=False)
+    """The image's unique colours (:class:`inkshift.chart.unique.UniqueColors`)."""
+    proof: Any = field(default=None, repr=False)
+    """Per-unique-colour results (:class:`inkshift.proof.ColorProof`)."""
+    source_profile: Any = field(default=None, repr=False)
+    """The image's profile as used (:class:`inkshift.icc.read.Profile`)."""
+    palette: Any = field(default=None, repr=False)
+    """The chart's palette (:class:`inkshift.chart.palette.Palette`), same order as ``colors``."""
 
     def to_dict(self) -> dict[str, Any]:
         """Return the report as plain JSON-ready data (schema :data:`CHECK_SCHEMA`)."""

@@ -1,0 +1,5 @@
+"""Allow ``python -m inkshift``."""
+
+from inkshift.cli import main
+
+main()

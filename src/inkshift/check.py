@@ -1,0 +1,390 @@
+"""The main job: soft-proof a chart image against an output profile.
+
+:func:`check` loads the image, proofs every unique colour once
+(:func:`inkshift.proof.proof_colors`), maps the results back to pixels,
+finds the chart's palette and judges which palette colours shift, leave the
+gamut or merge. :func:`write_check_outputs` writes the pictures and
+report.json atomically.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import replace
+from itertools import combinations
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+from PIL import Image
+
+from inkshift.cautions import cautions_for
+from inkshift.chart.load import ChartImage, load_chart
+from inkshift.chart.palette import Palette, extract_palette
+from inkshift.chart.unique import UniqueColors, expand, unique_colors
+from inkshift.color.difference import delta_e_2000
+from inkshift.errors import ImageError, InputError, ProfileError
+from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
+from inkshift.icc.cms import srgb_profile_bytes
+from inkshift.icc.evaluate import device_to_lab
+from inkshift.icc.intent import Intent, parse_intent
+from inkshift.icc.read import Profile, read_profile
+from inkshift.proof import ColorProof, check_output_profile, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.report.model import (
+    CheckReport,
+    ImageInfo,
+    PaletteColor,
+    PairVerdict,
+    ProfileInfo,
+    ProofMaps,
+    Summary,
+    hex_rgb,
+    rgb_hex,
+)
+from inkshift.shipped import DEFAULT_PROFILE, profiles_dir, resolve_profile
+from inkshift.thresholds import Thresholds
+
+__all__ = [
+    "check",
+    "open_output_profile",
+    "write_check_outputs",
+    "weighted_summary",
+    "pair_verdicts",
+    "INK_NAMES",
+    "OUTPUT_FILES",
+]
+
+INK_NAMES: dict[str, tuple[str, ...]] = {
+    "CMYK": ("c", "m", "y", "k"),
+    "GRAY": ("k",),
+    "RGB": ("r", "g", "b"),
+}
+"""Keys of the device recipe in the report, per output colour space."""
+
+OUTPUT_FILES: dict[str, str] = {
+    "heatmap": "heatmap.png",
+    "print": "print.png",
+    "side_by_side": "side_by_side.png",
+    "report": "report.json",
+}
+"""File names written into the output folder."""
+
+_WHITE = {"RGB": 255, "GRAY": 255, "CMYK": 0}
+
+
+def open_output_profile(spec: str | Path | Profile) -> tuple[Profile, ProfileInfo]:
+    """Return the output profile named by ``spec`` (short name, path or Profile) and its info."""
+    if isinstance(spec, Profile):
+        profile = spec
+        path = Path(profile.source)
+    else:
+        path = resolve_profile(spec)
+        profile = read_profile(path)
+    check_output_profile(profile)
+    shipped = path.parent.resolve() == profiles_dir().resolve() if path.exists() else False
+    name = path.stem if shipped else str(path)
+    info = ProfileInfo(
+        name=name,
+        description=profile.description,
+        path=str(path),
+        color_space=profile.color_space,
+        shipped=shipped,
+    )
+    return profile, info
+
+
+def _source_profile(chart: ChartImage, output: Profile) -> tuple[NDArray[np.uint8], Profile, str, bool, list[str]]:
+    """Return the pixels to proof, the image's profile, its name, whether it was assumed, and notes.
+
+    Without an embedded profile an RGB or gray image is taken as sRGB (gray
+    pixels are repeated into RGB) and a CMYK image as already in the output
+    profile's CMYK, so it is proofed as it stands.
+    """
+    notes: list[str] = []
+    label = chart.path or "image"
+    if chart.icc:
+        try:
+            profile = read_profile(chart.icc, name=f"{label} (embedded profile)")
+        except ProfileError as exc:
+            raise ImageError(label, f"embedded ICC profile is unusable: {exc.problem}") from None
+        if profile.color_space != chart.space:
+            raise ImageError(
+                label, f"embedded ICC profile is {profile.color_space} but the pixels are {chart.space}"
+            )
+        return chart.pixels, profile, profile.description or "embedded profile", False, notes
+    if chart.space == "CMYK":
+        notes.append("CMYK image without an embedded profile: taken to be in the output profile's CMYK.")
+        return chart.pixels, output, f"{output.description} (output profile, assumed)", True, notes
+    pixels = np.repeat(chart.pixels, 3, axis=-1) if chart.space == "GRAY" else chart.pixels
+    return pixels, srgb_profile(), "sRGB IEC61966-2.1 (assumed)", True, notes
+
+
+def _composite(pixels: NDArray[np.uint8], alpha: NDArray[np.uint8] | None, space: str) -> tuple[NDArray[np.uint8], list[str]]:
+    """Composite transparent areas onto white in the image's own space.
+
+    White separates to bare paper, so on the print side transparent areas
+    show the paper, and on the screen side they show the display white.
+    """
+    if alpha is None:
+        return pixels, []
+    a = alpha.astype(np.float32)[..., None] / 255.0
+    mixed = pixels.astype(np.float32) * a + _WHITE[space] * (1.0 - a)
+    note = "Transparent areas were composited onto white (bare paper in print)."
+    return np.rint(mixed).astype(np.uint8), [note]
+
+
+def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.int64]) -> Summary:
+    """Return per-pixel statistics from per-colour values weighted by pixel counts."""
+    counts = np.asarray(counts, dtype=np.float64)
+    total = counts.sum()
+    order = np.argsort(delta_e, kind="stable")
+    cum = np.cumsum(counts[order])
+    # p95 as the smallest value with at least 95 % of the pixels at or below it.
+    p95 = float(delta_e[order][np.searchsorted(cum, 0.95 * total, side="left")])
+    return Summary(
+        delta_e_mean=float(np.dot(delta_e, counts) / total),
+        delta_e_p95=p95,
+        delta_e_max=float(delta_e.max()),
+        out_of_gamut_share=float(counts[out_of_gamut].sum() / total),
+    )
+
+
+def pair_verdicts(
+    labels: list[str],
+    screen_lab: NDArray[np.float64],
+    other_lab: NDArray[np.float64],
+    thresholds: Thresholds,
+) -> tuple[list[PairVerdict], list[PairVerdict]]:
+    """Return (merges, separation losses) among colours from screen to another rendition.
+
+    A merge is a pair clearly distinct on screen (ΔE00 >= ``thresholds.distinct``)
+    and closer than ``thresholds.merge`` in the other rendition; a separation
+    loss keeps less than ``thresholds.separation_loss`` of its screen ΔE00
+    without merging.
+    """
+    merges: list[PairVerdict] = []
+    losses: list[PairVerdict] = []
+    if len(labels) < 2:
+        return merges, losses
+    i, j = np.array(list(combinations(range(len(labels)), 2))).T
+    screen = delta_e_2000(screen_lab[i], screen_lab[j])
+    other = delta_e_2000(other_lab[i], other_lab[j])
+    for a, b, s, o in zip(i, j, screen, other):
+        if s < thresholds.distinct:
+            continue
+        if o < thresholds.merge:
+            merges.append(PairVerdict(labels[a], labels[b], float(s), float(o), "merge"))
+        elif o < thresholds.separation_loss * s:
+            losses.append(PairVerdict(labels[a], labels[b], float(s), float(o), "separation loss"))
+    merges.sort(key=lambda p: p.print_delta_e)
+    losses.sort(key=lambda p: p.print_delta_e / p.screen_delta_e)
+    return merges, losses
+
+
+def _palette_colors(
+    palette: Palette,
+    proof: ColorProof,
+    source: Profile,
+    output: Profile,
+    thresholds: Thresholds,
+) -> list[PaletteColor]:
+    names = INK_NAMES[output.color_space]
+    screen_rgb = palette.colors if source is srgb_profile() else lab_to_srgb8(proof.screen_lab)
+    out: list[PaletteColor] = []
+    for k in range(len(palette.colors)):
+        ink = {n: float(v) * 100.0 / 255.0 for n, v in zip(names, proof.device[k])}
+        verdicts = []
+        if proof.out_of_gamut[k]:
+            verdicts.append("out of gamut")
+        if proof.delta_e[k] > thresholds.shift:
+            verdicts.append("shifts")
+        out.append(
+            PaletteColor(
+                hex=rgb_hex(screen_rgb[k]),
+                share=float(palette.shares[k]),
+                background=bool(palette.is_background[k]),
+                screen_lab=tuple(float(v) for v in proof.screen_lab[k]),
+                print_lab=tuple(float(v) for v in proof.print_lab[k]),
+                delta_e=float(proof.delta_e[k]),
+                out_of_gamut=bool(proof.out_of_gamut[k]),
+                ink=ink,
+                coverage=sum(ink.values()) if output.color_space != "RGB" else float("nan"),
+                print_hex=rgb_hex(proof.print_rgb[k]),
+                verdicts=tuple(verdicts),
+            )
+        )
+    return out
+
+
+def check(
+    image: str | Path | Image.Image | NDArray[Any] | ChartImage,
+    profile: str | Path | Profile = DEFAULT_PROFILE,
+    intent: Intent | str | int = Intent.RELATIVE,
+    *,
+    bpc: bool = True,
+    paper: bool = False,
+    thresholds: Thresholds = Thresholds(),
+    max_pixels: int | None = None,
+    keep_maps: bool = True,
+) -> CheckReport:
+    """Soft-proof a chart image on an output profile and judge its palette.
+
+    Parameters
+    ----------
+    image
+        A path, a PIL image or a numpy array (see :func:`inkshift.chart.load.load_chart`).
+    profile
+        A shipped short name, a path to an ICC output profile, or a Profile.
+    intent
+        Rendering intent of the separation (default relative colorimetric).
+    bpc
+        Black point compensation for the separation (default on).
+    paper
+        Show and measure the print on its paper white (ICC-absolute view).
+    thresholds
+        Verdict thresholds (:mod:`inkshift.thresholds`).
+    max_pixels
+        Refuse images with more pixels than this (default: the loader's limit).
+    keep_maps
+        Keep the full-resolution arrays in ``report.maps`` for the pictures.
+    """
+    intent = parse_intent(intent)
+    output, profile_info = open_output_profile(profile)
+    if isinstance(image, ChartImage):
+        chart = image
+    else:
+        chart = load_chart(image, **({} if max_pixels is None else {"max_pixels": max_pixels}))
+    pixels, source, source_name, assumed, notes = _source_profile(chart, output)
+    pixels, composite_notes = _composite(pixels, chart.alpha, chart.space)
+
+    uniq = unique_colors(pixels)
+    proof = proof_colors(
+        uniq.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
+    )
+    summary = weighted_summary(proof.delta_e, proof.out_of_gamut, uniq.counts)
+
+    def screen_lab_of(colors: NDArray[np.uint8]) -> NDArray[np.float64]:
+        return device_to_lab(source, np.asarray(colors) / 255.0, Intent.RELATIVE)
+
+    palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab)
+    pal_proof = proof_colors(
+        palette.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
+    )
+    colors = _palette_colors(palette, pal_proof, source, output, thresholds)
+    labels = [c.hex for c in colors]
+    merges, losses = pair_verdicts(labels, pal_proof.screen_lab, pal_proof.print_lab, thresholds)
+    merged = {m.a for m in merges} | {m.b for m in merges}
+    colors = [replace(c, verdicts=c.verdicts + ("merges",)) if c.hex in merged else c for c in colors]
+
+    maps = None
+    if keep_maps:
+        shape = pixels.shape[:2]
+        if source is srgb_profile():
+            screen_rgb = pixels
+        else:
+            screen_rgb = expand(lab_to_srgb8(proof.screen_lab), uniq.inverse, shape)
+        maps = ProofMaps(
+            screen_rgb=screen_rgb,
+            print_rgb=expand(proof.print_rgb, uniq.inverse, shape),
+            delta_e=expand(proof.delta_e.astype(np.float32), uniq.inverse, shape),
+            out_of_gamut=expand(proof.out_of_gamut, uniq.inverse, shape),
+        )
+
+    image_info = ImageInfo(
+        path=chart.path,
+        width=chart.width,
+        height=chart.height,
+        color_space=chart.space,
+        source_profile=source_name,
+        profile_assumed=assumed,
+        notes=tuple(chart.notes) + tuple(notes) + tuple(composite_notes),
+    )
+    extra: dict[str, Any] = {}
+    if chart.space == "CMYK":
+        coverage = uniq.colors.astype(np.float64).sum(axis=1) * 100.0 / 255.0
+        extra["ink_coverage"] = {
+            "max": round(float(coverage.max()), 1),
+            "mean": round(float(np.dot(coverage, uniq.counts) / uniq.counts.sum()), 1),
+        }
+    return CheckReport(
+        image=image_info,
+        output_profile=profile_info,
+        intent=intent.label,
+        bpc=bpc,
+        paper=paper,
+        summary=summary,
+        colors=colors,
+        merges=merges,
+        separation_losses=losses,
+        thresholds=thresholds,
+        cautions=cautions_for(
+            shipped_profile=profile_info.name if profile_info.shipped else None,
+            vision=False,
+            assumed_srgb=assumed and chart.space != "CMYK",
+        ),
+        extra=extra,
+        maps=maps,
+        unique=uniq,
+        proof=proof,
+        source_profile=source,
+        palette=palette,
+    )
+
+
+def default_out_dir(image: str | Path) -> Path:
+    """Return the default output folder: beside the image, named after it."""
+    path = Path(image)
+    return path.with_name(path.stem)
+
+
+def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, Path]:
+    """Write the pictures and report.json of ``report`` into ``out_dir`` atomically.
+
+    Each file is written under a temporary name and renamed; if anything
+    fails, files already renamed by this call are removed again and a folder
+    this call created is removed, so no partial output is left behind.
+    """
+    from inkshift.report.images import Swatch, heatmap_overlay, side_by_side
+
+    if report.maps is None:
+        raise InputError("the report has no pixel maps (check(..., keep_maps=False)); nothing to draw")
+    out, created = ensure_writable_dir(out_dir)
+    paths = {key: out / name for key, name in OUTPUT_FILES.items()}
+    written: list[Path] = []
+    try:
+        maps = report.maps
+        img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
+        written.append(save_image_atomic(img, paths["heatmap"]))
+        del img
+        sim = Image.fromarray(maps.print_rgb, mode="RGB")
+        written.append(save_image_atomic(sim, paths["print"], icc_profile=srgb_profile_bytes()))
+        del sim
+        swatches = [
+            Swatch(
+                screen_rgb=hex_rgb(c.hex),
+                print_rgb=hex_rgb(c.print_hex),
+                label=c.hex,
+                delta_e=c.delta_e,
+                marks=tuple(_MARKS[v] for v in c.verdicts if v in _MARKS),
+            )
+            for c in report.colors
+        ]
+        pair = side_by_side(maps.screen_rgb, maps.print_rgb, swatches)
+        written.append(save_image_atomic(pair, paths["side_by_side"], icc_profile=srgb_profile_bytes()))
+        report.outputs = {k: str(p) for k, p in paths.items()}
+        written.append(write_text_atomic(paths["report"], json.dumps(report.to_dict(), indent=2) + "\n"))
+    except BaseException:
+        report.outputs = {}
+        for p in written:
+            p.unlink(missing_ok=True)
+        if created:
+            try:
+                out.rmdir()
+            except OSError:
+                pass
+        raise
+    return paths
+
+
+_MARKS = {"out of gamut": "OUT", "shifts": "SHIFT", "merges": "MERGE"}

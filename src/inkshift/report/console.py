@@ -1,0 +1,159 @@
+"""Plain-text console summaries of reports, readable without colour support."""
+
+from __future__ import annotations
+
+import math
+from typing import TYPE_CHECKING, Sequence
+
+from inkshift.report.model import CheckReport, PairVerdict
+
+if TYPE_CHECKING:
+    from inkshift.compare import CompareReport
+
+__all__ = ["format_check", "format_compare", "format_table", "format_pairs"]
+
+INTENT_WORDS = {
+    "perceptual": "perceptual",
+    "relative": "relative colorimetric",
+    "saturation": "saturation",
+    "absolute": "ICC-absolute colorimetric",
+}
+
+
+def format_table(headers: Sequence[str], rows: Sequence[Sequence[str]], right: Sequence[bool] | None = None) -> list[str]:
+    """Return the lines of a plain-text table with columns padded to their widest cell."""
+    right = right or [False] * len(headers)
+    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
+
+    def line(cells: Sequence[str]) -> str:
+        parts = [c.rjust(w) if r else c.ljust(w) for c, w, r in zip(cells, widths, right)]
+        return "  ".join(parts).rstrip()
+
+    out = [line(headers), line(["-" * w for w in widths])]
+    out.extend(line(r) for r in rows)
+    return out
+
+
+def format_pairs(title: str, pairs: Sequence[PairVerdict], other: str = "print") -> list[str]:
+    """Return lines listing colour pairs and their ΔE00 on screen and in another rendition."""
+    if not pairs:
+        return []
+    lines = [title]
+    for p in pairs:
+        lines.append(
+            f"  {p.a} and {p.b}: ΔE00 {p.screen_delta_e:.1f} on screen, {p.print_delta_e:.1f} in {other}"
+        )
+    return lines
+
+
+def format_check(report: CheckReport) -> str:
+    """Return the console summary of a check: palette table, merges, outputs, cautions."""
+    img = report.image
+    prof = report.output_profile
+    s = report.summary
+    lines = [
+        f"Chart:    {img.path or '(in memory)'}  {img.width} x {img.height} px, {img.color_space}, "
+        f"source profile: {img.source_profile}",
+        f"Printer:  {prof.name}  ({prof.description})",
+        f"Intent:   {INTENT_WORDS.get(report.intent, report.intent)}, black point compensation "
+        f"{'on' if report.bpc else 'off'}{', print shown on its paper' if report.paper else ''}",
+        "",
+        f"Pixels:   ΔE00 mean {s.delta_e_mean:.2f}, 95th percentile {s.delta_e_p95:.2f}, "
+        f"max {s.delta_e_max:.2f}; out of gamut: {100 * s.out_of_gamut_share:.1f} % of the image",
+    ]
+    for note in img.notes:
+        lines.append(f"Note:     {note}")
+    lines.append("")
+    lines.append(f"Chart colours ({len(report.colors)} found)")
+    ink_keys = list(report.colors[0].ink) if report.colors else []
+    headers = ["screen", "share", "ΔE00", "prints as", *[k.upper() for k in ink_keys], "total", "verdict"]
+    rows = []
+    for c in report.colors:
+        verdict = ", ".join(c.verdicts) or "ok"
+        if c.background:
+            verdict += " (background)"
+        total = "" if math.isnan(c.coverage) else f"{c.coverage:.0f}%"
+        rows.append(
+            [c.hex, f"{100 * c.share:.1f}%", f"{c.delta_e:.1f}", c.print_hex,
+             *[f"{v:.0f}" for v in c.ink.values()], total, verdict]
+        )
+    right = [False, True, True, False, *[True] * len(ink_keys), True, False]
+    lines.extend("  " + ln for ln in format_table(headers, rows, right))
+    t = report.thresholds
+    lines.append(
+        f"  (shifts: ΔE00 > {t.shift:g}; out of gamut: round trip misses by > {t.out_of_gamut:g} ΔE00)"
+    )
+    pair_lines = format_pairs(
+        f"Merge in print (distinct on screen, ΔE00 >= {t.distinct:g}; under {t.merge:g} in print)",
+        report.merges,
+    ) + format_pairs(
+        f"Lose separation in print (keep under {100 * t.separation_loss:.0f} % of their screen ΔE00)",
+        report.separation_losses,
+    )
+    if pair_lines:
+        lines.append("")
+        lines.extend(pair_lines)
+    else:
+        lines.append("")
+        lines.append("No chart colours merge in print.")
+    if report.outputs:
+        lines.append("")
+        lines.append("Written:")
+        for key, path in report.outputs.items():
+            lines.append(f"  {key:13s} {path}")
+    lines.append("")
+    lines.append("Cautions:")
+    lines.extend(f"  - {c}" for c in report.cautions)
+    return "\n".join(lines)
+
+
+def format_compare(report: "CompareReport") -> str:
+    """Return the console summary of a comparison: profile table, colours, verdict, cautions."""
+    img = report.image
+    lines = [
+        f"Chart:    {img.path or '(in memory)'}  {img.width} x {img.height} px, source profile: {img.source_profile}",
+        f"Intent:   {INTENT_WORDS.get(report.intent, report.intent)}, black point compensation "
+        f"{'on' if report.bpc else 'off'}{', prints measured on their paper' if report.paper else ''}",
+        "",
+        "Printers",
+    ]
+    headers = ["profile", "ΔE00 mean", "p95", "chart ΔE00", "out of gamut", "merges", "gamut volume", "covers source"]
+    rows = [
+        [p.name, f"{p.delta_e_mean:.2f}", f"{p.delta_e_p95:.2f}", f"{p.palette_delta_e_mean:.2f}",
+         f"{100 * p.out_of_gamut_share:.1f}%", str(p.merge_count), f"{p.gamut_volume:,.0f}",
+         f"{100 * p.source_coverage:.0f}%"]
+        for p in report.profiles
+    ]
+    lines.extend("  " + ln for ln in format_table(headers, rows, [False] + [True] * 7))
+    lines.append("")
+    lines.append("Chart colours, ΔE00 from screen (* out of gamut)")
+    names = [p.name for p in report.profiles]
+    rows = []
+    for k, c in enumerate(report.profiles[0].check.colors):
+        cells = [c.hex, f"{100 * c.share:.1f}%"]
+        for p in report.profiles:
+            pc = p.check.colors[k]
+            cells.append(f"{pc.delta_e:.1f}{'*' if pc.out_of_gamut else ' '}")
+        rows.append(cells)
+    lines.extend("  " + ln for ln in format_table(["screen", "share", *names], rows, [False, True, *[True] * len(names)]))
+    for p in report.profiles:
+        pair_lines = format_pairs(f"Merge on {p.name}", p.check.merges)
+        if pair_lines:
+            lines.append("")
+            lines.extend(pair_lines)
+    if report.differences:
+        lines.append("")
+        lines.append("Where the prints differ from each other")
+        for d in report.differences:
+            lines.append(f"  {d.a} vs {d.b}: ΔE00 mean {d.delta_e_mean:.2f}, p95 {d.delta_e_p95:.2f}, max {d.delta_e_max:.2f}")
+    lines.append("")
+    lines.append("Verdict: " + report.verdict)
+    if report.outputs:
+        lines.append("")
+        lines.append("Written:")
+        for key, path in report.outputs.items():
+            lines.append(f"  {path}")
+    lines.append("")
+    lines.append("Cautions:")
+    lines.extend(f"  - {c}" for c in report.cautions)
+    return "\n".join(lines)
