@@ -47,6 +47,10 @@ def _root(
 # Command modules register themselves on the apps above when imported.
 from inkshift.commands import profiles_show  # noqa: E402,F401
 from inkshift.commands import profiles_build  # noqa: E402,F401
+from inkshift.commands import check  # noqa: E402,F401
+from inkshift.commands import compare  # noqa: E402,F401
+from inkshift.commands import ramp  # noqa: E402,F401
+from inkshift.commands import swatches  # noqa: E402,F401
 
 
 def main() -> None:
