@@ -238,9 +238,10 @@ def estimate_ink_limit(profile: Any) -> float | None:
     """Return a CMYK profile's ink limit (fraction, e.g. 3.0) read from its B2A1, or None.
 
     The largest channel sum over the table's CLUT nodes
-    (:func:`inkshift.icc.summary.total_ink_limit`), rounded up to whole
-    percent: a profile's own separation never asks for more ink than its
-    condition allows, so this is the limit it was built for. None for
+    (:func:`inkshift.icc.summary.total_ink_limit`), rounded to 0.1 %
+    (which absorbs the 16-bit rounding of the table entries): a profile's own
+    separation never asks for more ink than its condition allows, so this is
+    the limit it was built for. None for
     profiles that are not CMYK or have no B2A table.
     """
     prof = _open(profile)
@@ -248,7 +249,7 @@ def estimate_ink_limit(profile: Any) -> float | None:
     percent = total_ink_limit(prof.luts[tag]) if tag is not None else None
     if percent is None:
         return None
-    return float(np.ceil(percent - 1e-6) / 100.0)
+    return float(np.round(percent, 1) / 100.0)
 
 
 def profile_boundary_lab(profile: Any, *, ink_limit: float | None = None, steps: int = FACE_STEPS) -> NDArray[np.float64]:
@@ -288,7 +289,8 @@ def gamut_volume(profile: Any, *, ink_limit: float | None = None) -> float:
     -----
     Segment-maxima descriptor (Morovič and Luo 2000) with star-shaped
     cross-sections; see the module docstring for the method and for why the
-    values are ICC-absolute.
+    values are ICC-absolute. A gray profile's gamut is a line of neutrals
+    (or near-neutrals), so its volume is zero or close to it.
     """
     return gamut_descriptor(profile, ink_limit=ink_limit).volume
 
