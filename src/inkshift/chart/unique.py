@@ -159,8 +159,10 @@ def unique_colors(pixels: ArrayLike) -> UniqueColors:
     n = h * w
     bits = 8 * c
     keys = pack_colors(pixels).reshape(-1)
-    starts = _run_starts(keys)
-    if starts.size <= n // _RUN_GAIN:
+    change = _run_changes(keys)
+    if int(np.count_nonzero(change)) <= n // _RUN_GAIN:
+        starts = np.flatnonzero(change)
+        del change
         run_keys = keys[starts]
         lengths = np.diff(np.append(starts, n))
         del keys
@@ -168,7 +170,7 @@ def unique_colors(pixels: ArrayLike) -> UniqueColors:
         counts = np.bincount(run_rank, weights=lengths, minlength=ukeys.size).astype(np.int64)
         inverse = np.repeat(run_rank, lengths)
     else:
-        del starts
+        del change
         ukeys, inverse = _rank(keys, bits)
         counts = _counts(inverse, ukeys.size)
     return UniqueColors(
@@ -180,13 +182,13 @@ def unique_colors(pixels: ArrayLike) -> UniqueColors:
     )
 
 
-def _run_starts(keys: NDArray[np.uint32]) -> NDArray[np.intp]:
-    """Indices where a new run of equal keys begins (always including 0)."""
+def _run_changes(keys: NDArray[np.uint32]) -> NDArray[np.bool_]:
+    """True where a new run of equal keys begins (always at 0)."""
     change = np.empty(keys.size, dtype=bool)
     if keys.size:
         change[0] = True
         np.not_equal(keys[1:], keys[:-1], out=change[1:])
-    return np.flatnonzero(change)
+    return change
 
 
 def _rank_wide(keys: NDArray[np.uint32]) -> tuple[NDArray[np.uint32], NDArray[np.int32]]:
