@@ -76,9 +76,9 @@ RAMP_SCHEMA = "inkshift.ramp/1"
 RAMP_STEP_DELTA_E = 3.0
 """ΔE00 under which two adjacent steps of a scale are too close to tell apart.
 Adjacent legend steps touch, so they are compared side by side, where about
-1 ΔE00 is the just-noticeable difference for large patches (CIE 142-2001);
-common practice asks a few times that for small map or chart areas read
-against the legend."""
+1 ΔE00 is the just-noticeable difference for large patches (as
+:mod:`inkshift.thresholds` notes, CIE 142-2001); common practice asks a few
+times that for small map or chart areas read against the legend."""
 
 RAMP_GRAY_STEP_DELTA_L = 3.0
 """ΔL* under which two adjacent steps are too close in the gray print.
@@ -93,8 +93,10 @@ patches (see :data:`RAMP_GRAY_STEP_DELTA_L`), which also absorbs the profile
 tables' interpolation noise. Common practice."""
 
 DEFAULT_STRIP_STEPS = 9
-"""Steps sampled from a legend strip when none is given (project choice:
-classed legends of choropleth maps and charts mostly have 3-9 classes)."""
+"""Steps sampled from a legend strip when none is given. Project choice: classed
+legends of maps and charts mostly have 3 to 9 classes (from memory: the
+ColorBrewer sequential schemes come in 3 to 9 classes); a continuous colour bar
+should be sampled with --steps set to the classes the reader is meant to tell apart."""
 
 RAMP_KINDS = ("sequential", "diverging")
 
