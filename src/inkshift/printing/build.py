@@ -48,24 +48,32 @@ def write_profile_atomic(data: bytes, path: str | Path) -> Path:
     was. Raises :class:`~inkshift.errors.InputError` when the folder is
     missing or not writable.
     """
-    path = Path(path)
-    if not path.parent.is_dir():
-        raise InputError(f"{path}: the output folder {path.parent} does not exist")
-    if path.is_dir():
-        raise InputError(f"{path}: is a folder, not a file name")
+    path = _check_target(path)
     try:
         return write_bytes_atomic(path, data)
     except OSError as exc:
         raise InputError(f"{path}: cannot write the profile ({exc.strerror or type(exc).__name__})") from None
 
 
+def _check_target(path: str | Path) -> Path:
+    path = Path(path)
+    if not path.parent.is_dir():
+        raise InputError(f"{path}: the output folder {path.parent} does not exist")
+    if path.is_dir():
+        raise InputError(f"{path}: is a folder, not a file name")
+    return path
+
+
 def build_profile_file(condition_path: str | Path, output: str | Path) -> Path:
     """Load a condition file, build its profile and write it atomically to ``output``.
 
-    A bad condition raises :class:`~inkshift.errors.ConditionError` before
-    anything is written.
+    The output path is checked first and a bad condition raises
+    :class:`~inkshift.errors.ConditionError`, both before the (slow) build
+    and before anything is written.
     """
-    return write_profile_atomic(build_profile(load_condition(condition_path)), output)
+    target = _check_target(output)
+    condition = load_condition(condition_path)
+    return write_profile_atomic(build_profile(condition), target)
 
 
 @dataclass(frozen=True)
