@@ -394,3 +394,16 @@ def test_cmyk_profile_round_trip_no_worse_than_littlecms(seed_lab: np.ndarray) -
     ref_again = lab_from_8(lcms_lab_codes(transform_colors(ref_cmyk, path, LAB_D50, "CMYK", "LAB", 1, optimise=False)))
     theirs = delta_e_2000(ref_lab, ref_again)
     assert np.all(ours <= theirs + CMYK_ROUND_TRIP_MARGIN_DE00)
+
+
+def test_xyz_device_space_identity_profile() -> None:
+    # LCMSXYZI.ICM is LittleCMS's "Relative XYZ identity" profile (its description):
+    # device XYZ, as normalised u1Fixed15 codes (ICC.1:2022 6.3.4.3), maps to the same
+    # PCS XYZ. Pillow has no XYZ mode, so this is checked against the identity itself;
+    # 2e-5 is about one 16-bit code (1/32768 = 3e-5 in XYZ).
+    profile = read_profile(require_file(f"{ICC}/LCMSXYZI.ICM"))
+    assert (profile.color_space, profile.pcs) == ("XYZ", "XYZ")
+    xyz = np.random.default_rng(8).random((1000, 3)) * D50_XYZ
+    device = xyz * 32768.0 / 65535.0
+    np.testing.assert_allclose(device_to_xyz(profile, device), xyz, atol=2e-5)
+    np.testing.assert_allclose(xyz_to_device(profile, xyz), device, atol=2e-5)
