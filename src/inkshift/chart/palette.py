@@ -1,0 +1,804 @@
+"""Find the colours a chart was drawn with, told apart from blends and noise.
+
+A rendered chart holds far more distinct colours than its author chose: edges
+are anti-aliased (each edge pixel mixes the two colours it covers in
+proportion to the area covered), and JPEG compression scatters every flat
+fill into a cloud of nearby colours. :func:`extract_palette` recovers the
+intended colours (fills, lines, markers, text), each with its share of the
+image, and explains every other colour as noise around one of them or as a
+blend of two of them.
+
+Method (the project's own; the reasoning is given for each step)
+----------------------------------------------------------------
+1. **Spatial evidence per pixel.** Along each axis a pixel is compared with
+   its neighbours in device values (8-bit codes, the space in which the
+   renderer mixed colours):
+
+   - *flat*: both neighbours on both axes within :data:`FLAT_TOLERANCE` codes.
+     Fills have flat interiors; anti-aliased edges are one or two pixels wide
+     and never flat.
+   - *core*: on neither axis does the pixel lie strictly *between* its two
+     neighbours (every channel inside their range, give or take the
+     tolerance, and clearly different from both). An edge blend sits between
+     the colours on its two sides; the middle of a thin line or of a text stem
+     is an extreme of its neighbourhood, not between.
+   - *line*: a core pixel that stands out from both neighbours across a
+     horizontal or vertical run of at least :data:`LINE_RUN` similar pixels
+     (neighbours at one or two pixels, for lines up to three wide). Axes,
+     gridlines and straight chart lines make such runs; text stems are
+     shorter, and a halo along a bar's edge has the bar on one side only.
+   - *graded*: a flat pixel inside a smooth ramp (:data:`GRADIENT_STEP`).
+   Evidence is gathered in strips of rows, so memory stays small.
+
+2. **Fills.** Colours with flat pixels are grouped greedily: the colour with
+   the most flat pixels seeds a group that takes every colour within the noise
+   radius (:data:`NOISE_DELTA_E` in CIEDE2000, or :data:`NOISE_CODES`); repeat.
+   A group is a drawn fill when it has :data:`MIN_FLAT_PIXELS` flat pixels,
+   unless most of them are graded (a legend's colour ramp) or it is a halo
+   (see :func:`_drop_halos`). Its colour is the per-channel median of its
+   flat pixels, re-centred on the whole noise cloud (:data:`REFINE_CODES`):
+   the mode for a clean PNG, the centre of the cloud for a JPEG, never the
+   mean of its blends.
+
+3. **Lines and strokes.** Colours not explained by a fill are grouped the same
+   way, first by line pixels (a *line* colour needs :data:`MIN_LINE_PIXELS`),
+   then by core pixels (a *thin-stroke* colour needs :data:`MIN_CORE_PIXELS`):
+   text, diagonal lines, small markers in a noisy JPEG. Candidates within the
+   noise radius of a better-founded one are merged into it (fill before line
+   before stroke).
+
+4. **Noise and blends among thin marks** (:func:`_drop_blends`). A line or
+   stroke close to a fill (twice the noise radius) is that fill's noise. A
+   stroke that lies on the straight segment between two other palette
+   colours, in encoded values or in linear light, within
+   :data:`BLEND_TOLERANCE` codes and strictly inside the segment
+   (:data:`BLEND_MIN_FRACTION`), is a blend. This is the rule for small
+   text: each stem of 9-11 px text is under a pixel wide, so its darkest
+   pixel is a mix of ink and paper that differs from stem to stem; those
+   mixes all lie between the paper and the ink and are dropped, while the ink
+   itself (an extreme, never between two other colours) stays when it
+   appears anywhere in full (a heading, an axis). Fills and lines are never
+   dropped as blends: a stacked bar whose middle segment lies between its
+   neighbours in colour still has a flat interior.
+
+5. **Labels.** Every unique colour gets the index of its nearest palette
+   colour if within the noise radius (noise folded in), else :data:`BLEND`
+   with the two parents and the mixing fraction if it lies on a segment
+   between two palette colours, else :data:`OTHER`. The most common colour is
+   always in the palette and flagged as the background.
+
+Known limits. Thin marks in a JPEG with 4:2:0 chroma subsampling (the
+default) take the chroma of their surroundings, because one chroma sample
+covers 2 x 2 pixels: what is found is the paler colour actually stored.
+A one-pixel line whose runs are shorter than :data:`LINE_RUN` and whose
+colour lies between the paper and another palette colour (short gray dashes
+between white and black) is taken for anti-aliasing. A line always rendered
+straddling two pixel rows is reported with the colour it shows. Colours
+closer than the noise radius are reported as one. Continuous gradients are
+not reported (their end colours may be, as thin strokes). Images enlarged
+with smooth interpolation have edges several pixels wide and may yield extra
+colours.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from inkshift.chart.unique import UniqueColors, unique_colors
+from inkshift.color.difference import delta_e_1976, delta_e_2000
+
+__all__ = [
+    "Palette",
+    "extract_palette",
+    "BLEND",
+    "OTHER",
+    "FLAT_TOLERANCE",
+    "NOISE_DELTA_E",
+    "NOISE_CODES",
+    "REFINE_CODES",
+    "MIN_FLAT_PIXELS",
+    "MIN_CORE_PIXELS",
+    "LINE_RUN",
+    "RUN_TOLERANCE",
+    "MIN_LINE_PIXELS",
+    "GRADIENT_REACH",
+    "GRADIENT_STEP",
+    "GRADIENT_SHARE",
+    "HALO_REACH",
+    "HALO_RIM_SHARE",
+    "BLEND_TOLERANCE",
+    "BLEND_MIN_FRACTION",
+]
+
+BLEND = -1
+"""Label of a colour explained as a blend of two palette colours."""
+OTHER = -2
+"""Label of a colour that is neither a palette colour, its noise, nor a two-colour blend."""
+
+FLAT_TOLERANCE = 6
+"""Codes (8-bit, any channel) within which neighbours count as the same colour.
+Chosen by this project from measurement: inside flat fills of the sample charts
+saved as JPEG quality 85 with 4:2:0 chroma subsampling, 99 % of neighbour
+differences are within 6 codes; in lossless PNG they are 0."""
+
+NOISE_DELTA_E = 3.0
+"""CIEDE2000 radius within which colours are one drawn colour plus noise. The JND
+of ΔE00 is about 1 (common practice); JPEG quality 85 scatters the flat fills of
+the sample charts up to about 3 ΔE00 around their drawn colour (measured by this
+project), so colours closer than this are not told apart."""
+
+NOISE_CODES = 6
+"""Codes (8-bit, largest channel) within which colours are also one drawn colour
+plus noise. JPEG noise is added in YCbCr codes, roughly evenly over the colour
+cube, whereas CIEDE2000 is most sensitive near saturated blue: there the noise
+of the sample charts at quality 85 reaches 3.5 ΔE00 while staying within 6
+codes (measured by this project)."""
+
+REFINE_CODES = 18
+"""Codes (largest channel) around a group's colour whose evidence sets its final
+colour: about twice the standard deviation of JPEG quality 85 noise on small
+saturated marks (7-13 codes, measured by this project on the test charts)."""
+
+MIN_FLAT_PIXELS = 12
+"""Flat pixels a fill needs: a marker 6 px across has a flat core of about 12
+pixels (chosen by this project)."""
+
+MIN_CORE_PIXELS = 24
+"""Core pixels a thin-stroke colour needs (chosen by this project: a few letters
+of 10 px text)."""
+
+LINE_RUN = 24
+"""Run length (pixels) that makes a core pixel a line pixel: longer than the
+stems of text up to about 30 px, shorter than any axis or gridline (chosen by
+this project)."""
+
+RUN_TOLERANCE = 12
+"""Codes (any channel) within which neighbours continue a run: twice
+:data:`FLAT_TOLERANCE`, because JPEG noise along a thin line is stronger than
+inside a fill (chosen by this project)."""
+
+MIN_LINE_PIXELS = 48
+"""Line pixels a line colour needs: two runs of :data:`LINE_RUN` (chosen by this project)."""
+
+GRADIENT_REACH = 3
+GRADIENT_STEP = 3
+"""A flat pixel is *graded* when, in some channel, the pixels GRADIENT_REACH away
+on both sides differ from it by at least GRADIENT_STEP codes in the same
+direction: it sits inside a smooth ramp (a legend's colour bar), not a fill.
+JPEG noise of about 2 codes rarely passes (chosen by this project)."""
+
+GRADIENT_SHARE = 0.5
+"""Share of graded flat pixels above which a fill group is part of a gradient and
+not a drawn colour (chosen by this project)."""
+
+HALO_REACH = 3
+"""Pixels from an edge within which JPEG's 4:2:0 chroma subsampling tints a fill
+(two chroma samples of 2 x 2 pixels, plus the 8 x 8 transform's ringing; chosen
+by this project)."""
+
+HALO_RIM_SHARE = 0.8
+"""Share of a fill's flat pixels within :data:`HALO_REACH` of an edge above which a
+fill close to a stronger one is taken for a halo (chosen by this project; a
+legend swatch 14 px square has 75 %)."""
+
+BLEND_TOLERANCE = 8.0
+"""Codes (8-bit, largest channel) a blend may lie off the segment between its
+parents: 0.5 for rounding, the rest for JPEG noise on edges (chosen by this
+project from the JPEG quality 85 sample charts)."""
+
+BLEND_MIN_FRACTION = 0.04
+"""Smallest mixing fraction of a blend; closer to a parent it is that parent's
+noise (chosen by this project: 4 % of a full black-white step is 10 codes)."""
+
+_STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
+_CHUNK = 1 << 13  # colours per step when matching colours against the palette
+_REFINE_STEPS = 4  # median-shift steps when re-centring a group's colour
+_PARENTS = 16  # nearest palette colours (Euclidean, codes) among which a blend's parents are sought
+
+
+@dataclass(frozen=True)
+class Palette:
+    """The drawn colours of a chart.
+
+    Attributes
+    ----------
+    colors
+        ``(K, C)`` uint8 device values, most pixels first.
+    lab
+        ``(K, 3)`` CIELAB of ``colors`` (from the caller's ``lab`` function).
+    counts
+        ``(K,)`` pixels of each colour, its noise included, blends excluded.
+    shares
+        ``(K,)`` ``counts`` over all counted pixels (pixels with alpha 0 are not counted).
+    is_background
+        ``(K,)`` bool, True for the colour with the most pixels.
+    kind
+        ``(K,)`` str: ``"fill"``, ``"line"`` or ``"stroke"`` (the evidence that kept it).
+    labels
+        ``(N,)`` int per unique colour: palette index, :data:`BLEND` or :data:`OTHER`.
+    parents
+        ``(N, 2)`` int: for blends the two palette indices, else ``-1``.
+    mix
+        ``(N,)`` float: for blends the fraction of ``parents[:, 0]`` in encoded
+        device values (``color ≈ mix * p0 + (1 - mix) * p1``), else NaN.
+    """
+
+    colors: NDArray[np.uint8]
+    lab: NDArray[np.float64]
+    counts: NDArray[np.int64]
+    shares: NDArray[np.float64]
+    is_background: NDArray[np.bool_]
+    kind: NDArray[np.str_]
+    labels: NDArray[np.int64]
+    parents: NDArray[np.int64]
+    mix: NDArray[np.float64]
+
+    def __len__(self) -> int:
+        return int(self.colors.shape[0])
+
+
+def extract_palette(
+    pixels: ArrayLike,
+    lab: Callable[[NDArray[np.uint8]], NDArray[np.float64]],
+    *,
+    alpha: ArrayLike | None = None,
+    unique: UniqueColors | None = None,
+    unique_lab: ArrayLike | None = None,
+) -> Palette:
+    """Return the colours a chart was drawn with (see the module docstring).
+
+    Parameters
+    ----------
+    pixels
+        ``(H, W, C)`` uint8 device values (C = 1, 3 or 4).
+    lab
+        ``lab(colors (M, C) uint8) -> (M, 3)`` CIELAB; the caller's screen conversion.
+    alpha
+        ``(H, W)`` uint8 or None. Pixels with alpha 0 are ignored; partly
+        transparent pixels are counted but give no spatial evidence.
+    unique
+        The image's :class:`~inkshift.chart.unique.UniqueColors`, if already computed.
+    unique_lab
+        ``lab(unique.colors)``, if already computed.
+
+    Returns
+    -------
+    Palette
+    """
+    pixels = np.asarray(pixels)
+    if pixels.dtype != np.uint8 or pixels.ndim != 3 or pixels.shape[2] not in (1, 3, 4):
+        raise ValueError(f"extract_palette needs (H, W, C) uint8 pixels, got {pixels.dtype} {pixels.shape}")
+    h, w, c = pixels.shape
+    u = unique if unique is not None else unique_colors(pixels)
+    n = len(u)
+    ulab = np.asarray(unique_lab if unique_lab is not None else lab(u.colors), dtype=np.float64)
+    inverse = u.inverse
+
+    if alpha is None:
+        counted = None
+        evidence_ok = None
+        totals = u.counts.astype(np.int64)
+    else:
+        a = np.asarray(alpha).reshape(-1)
+        counted = a > 0
+        evidence_ok = (a == 255).reshape(h, w)
+        totals = np.bincount(inverse[counted], minlength=n).astype(np.int64)
+
+    flat_n, core_n, line_n, graded_n, rim_n = _evidence_counts(pixels, evidence_ok, inverse, n)
+
+    # Step 2: fills.
+    free = totals > 0
+    fills = _group(u.colors, ulab, flat_n, free, MIN_FLAT_PIXELS)
+    fills = [g for g in fills if graded_n[g[2]].sum() < GRADIENT_SHARE * g[1]]
+    fills = _drop_halos(fills, rim_n, lab)
+    cand_colors = [g[0] for g in fills]
+    cand_kind = ["fill"] * len(fills)
+    cand_strength = [float(g[1]) for g in fills]
+    members_taken = np.zeros(n, bool)
+    for g in fills:
+        members_taken |= g[2]
+
+    # Step 3: strokes, among colours not already explained by a fill.
+    near_fill = np.zeros(n, bool)
+    if cand_colors:
+        fill_colors = np.array(cand_colors, np.uint8)
+        fill_lab = np.asarray(lab(fill_colors), np.float64)
+        for col, flab in zip(fill_colors, fill_lab):
+            near_fill |= _same(u.colors, ulab, col, flab)
+    free = (totals > 0) & ~near_fill & ~members_taken
+    line_groups = _group(u.colors, ulab, line_n, free, MIN_LINE_PIXELS)
+    for col, strength, members in line_groups:
+        cand_colors.append(col)
+        cand_kind.append("line")
+        cand_strength.append(float(strength))
+        free &= ~members
+    strokes = _group(u.colors, ulab, core_n, free, MIN_CORE_PIXELS)
+    for col, strength, _members in strokes:
+        cand_colors.append(col)
+        cand_kind.append("stroke")
+        cand_strength.append(float(strength))
+
+    # The most common colour is always in the palette (a tiny or uniform image
+    # may have no evidence at all).
+    top = int(np.argmax(totals))
+    covered = any(
+        bool(_same(u.colors[top : top + 1], ulab[top : top + 1], np.asarray(col, np.uint8), np.asarray(lab(np.array([col], np.uint8)), np.float64)[0])[0])
+        for col in cand_colors
+    )
+    if not covered:
+        cand_colors.append(u.colors[top])
+        cand_kind.append("fill")
+        cand_strength.append(float(totals[top]))
+
+    colors = np.array(cand_colors, dtype=np.uint8).reshape(-1, c)
+    kinds = np.array(cand_kind)
+    strength = np.array(cand_strength)
+
+    # Merge candidates that came out within the noise radius of each other.
+    colors, kinds, strength = _merge_close(colors, kinds, strength, lab)
+
+    # Step 4: drop thin-stroke candidates that are blends of two others.
+    colors, kinds = _drop_blends(colors, kinds, strength, lab)
+
+    # Step 5: labels for every unique colour, then counts and shares.
+    plab = np.asarray(lab(colors), dtype=np.float64)
+    labels, parents, mix = _label(u.colors, ulab, colors, plab)
+    k = colors.shape[0]
+    sel = labels >= 0
+    counts = np.bincount(labels[sel], weights=totals[sel], minlength=k).astype(np.int64)
+    order = np.lexsort((np.arange(k), -counts))
+    remap = np.empty(k, np.int64)
+    remap[order] = np.arange(k)
+    labels = np.where(labels >= 0, remap[np.maximum(labels, 0)], labels)
+    parents = np.where(parents >= 0, remap[np.maximum(parents, 0)], -1)
+    colors, plab, counts, kinds = colors[order], plab[order], counts[order], kinds[order]
+    total = int(totals.sum())
+    shares = counts / total if total else np.zeros(k)
+    is_background = np.zeros(k, bool)
+    if k:
+        is_background[0] = True
+    return Palette(
+        colors=colors,
+        lab=plab,
+        counts=counts,
+        shares=shares,
+        is_background=is_background,
+        kind=kinds,
+        labels=labels,
+        parents=parents,
+        mix=mix,
+    )
+
+
+def _evidence_counts(
+    pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None, inverse: NDArray[np.int32], n: int
+) -> tuple[NDArray[np.int64], ...]:
+    """Per unique colour: flat, core, line, graded and rim pixel counts.
+
+    Works in strips of rows with :data:`LINE_RUN` rows of overlap on each side,
+    which is enough for every neighbourhood test and for deciding whether a
+    vertical run reaches LINE_RUN; memory then stays proportional to one strip.
+    """
+    h, w, _ = pixels.shape
+    out = [np.zeros(n, np.int64) for _ in range(5)]
+    step = max(64, _STRIP_PIXELS // max(w, 1))
+    halo = LINE_RUN
+    for s0 in range(0, h, step):
+        s1 = min(h, s0 + step)
+        w0, w1 = max(0, s0 - halo), min(h, s1 + halo)
+        ok = None if evidence_ok is None else evidence_ok[w0:w1]
+        masks = _pixel_evidence(pixels[w0:w1], ok)
+        flat = masks[0]
+        rim = flat & _near(~flat, HALO_REACH)
+        inv = inverse[s0 * w : s1 * w]
+        for k, mask in enumerate(masks + (rim,)):
+            out[k] += np.bincount(inv[mask[s0 - w0 : s1 - w0].reshape(-1)], minlength=n)
+    return tuple(out)
+
+
+def _pixel_evidence(
+    pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None
+) -> tuple[NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_]]:
+    """Flat, core, line and graded masks (H, W); see step 1 of the module docstring."""
+    h, w, c = pixels.shape
+    flat = np.ones((h, w), bool)
+    core = np.ones((h, w), bool)
+    graded = np.zeros((h, w), bool)
+    runs = []
+    sandwiched = []
+    tol = FLAT_TOLERANCE
+    for axis in (0, 1):
+        prev_far = np.zeros((h, w), bool)  # some channel differs from the previous neighbour
+        next_far = np.zeros((h, w), bool)
+        next_apart = np.zeros((h, w), bool)  # differs from the next by more than the run tolerance
+        inside = np.ones((h, w), bool)  # every channel within the neighbours' range
+        # Largest-channel distances to the neighbours at 1 and 2 pixels, and between them.
+        dist = {key: np.zeros((h, w), np.int16) for key in ("p1", "n1", "pn1", "p2", "n2", "pn2")}
+        for ch in range(c):
+            x = pixels[..., ch].astype(np.int16)
+            a, b = _reach(x, axis, 1)  # x[i] - x[i-1], x[i+1] - x[i] (0 past the border)
+            aa, ab = np.abs(a), np.abs(b)
+            prev_far |= aa > tol
+            next_far |= ab > tol
+            next_apart |= ab > RUN_TOLERANCE
+            inside &= (a.astype(np.int32) * b >= 0) | (np.minimum(aa, ab) <= tol)
+            np.maximum(dist["p1"], aa, out=dist["p1"])
+            np.maximum(dist["n1"], ab, out=dist["n1"])
+            np.maximum(dist["pn1"], np.abs(a + b), out=dist["pn1"])
+            a2, b2 = _reach(x, axis, 2)
+            np.maximum(dist["p2"], np.abs(a2), out=dist["p2"])
+            np.maximum(dist["n2"], np.abs(b2), out=dist["n2"])
+            np.maximum(dist["pn2"], np.abs(a2 + b2), out=dist["pn2"])
+            r = GRADIENT_REACH
+            if x.shape[axis] > 2 * r:
+                ar, br = _reach(x, axis, r)
+                g = GRADIENT_STEP
+                graded |= ((ar >= g) & (br >= g)) | ((ar <= -g) & (br <= -g))
+        flat &= ~prev_far & ~next_far
+        core &= ~(prev_far & next_far & inside)
+        # The pixel stands out from both neighbours more than they differ from
+        # each other (at one or two pixels' reach, for lines up to three wide):
+        # the middle of a line, not an edge with a halo.
+        sw = np.zeros((h, w), bool)
+        for k in ("1", "2"):
+            p_, n_, pn = dist["p" + k], dist["n" + k], dist["pn" + k]
+            sw |= (p_ > tol) & (n_ > tol) & (pn <= np.minimum(p_, n_))
+        sandwiched.append(sw)
+        runs.append(_run_lengths(~next_apart, axis) >= LINE_RUN)
+        del dist
+    # A line pixel runs along one axis and is sandwiched across it.
+    line = core & ((runs[1] & sandwiched[0]) | (runs[0] & sandwiched[1]))
+    graded &= flat
+    if evidence_ok is not None:
+        flat &= evidence_ok
+        core &= evidence_ok
+        line &= evidence_ok
+        graded &= evidence_ok
+    return flat, core, line, graded
+
+
+def _near(mask: NDArray[np.bool_], reach: int) -> NDArray[np.bool_]:
+    """Pixels within ``reach`` (Chebyshev distance) of a True pixel of ``mask``."""
+    out = mask.copy()
+    for axis in (0, 1):
+        src = out.copy()
+        n = src.shape[axis]
+        for k in range(1, min(reach, n - 1) + 1):
+            lo = [slice(None), slice(None)]
+            hi = [slice(None), slice(None)]
+            lo[axis], hi[axis] = slice(0, n - k), slice(k, n)
+            out[tuple(lo)] |= src[tuple(hi)]
+            out[tuple(hi)] |= src[tuple(lo)]
+    return out
+
+
+def _drop_halos(groups, rim_n, lab):
+    """Drop fill groups that are compression halos or wide blends of stronger fills.
+
+    A group whose flat pixels lie almost all (:data:`HALO_RIM_SHARE`) within
+    :data:`HALO_REACH` pixels of an edge is not a colour of its own when its
+    colour is within twice the noise radius of a stronger fill (the tint JPEG's
+    chroma subsampling leaves beside a saturated edge) or lies between two
+    stronger fills (an anti-aliased edge enlarged so much that its blend
+    pixels became flat).
+    """
+    if not groups:
+        return groups
+    colors = np.array([g[0] for g in groups], np.uint8)
+    glab = np.asarray(lab(colors), np.float64)
+    keep: list[int] = []
+    for i, (_col, flat_total, members) in enumerate(groups):
+        rim = float(rim_n[members].sum())
+        if keep and rim >= HALO_RIM_SHARE * flat_total:
+            ref = np.array(keep)
+            codes = np.abs(colors[ref].astype(np.int16) - colors[i].astype(np.int16)).max(axis=1)
+            d00 = delta_e_2000(glab[ref], glab[i])
+            if np.any((codes <= 2 * NOISE_CODES) | (d00 <= 2 * NOISE_DELTA_E)):
+                continue
+            if ref.size >= 2 and _best_pair(colors[i : i + 1], colors[ref], nearest_only=False)[2][0] <= BLEND_TOLERANCE:
+                continue  # a blend wide enough to have flat pixels (an enlarged image)
+        keep.append(i)
+    return [groups[i] for i in keep]
+
+
+def _reach(x: NDArray[np.int16], axis: int, r: int) -> tuple[NDArray[np.int16], NDArray[np.int16]]:
+    """(x[i] - x[i-r], x[i+r] - x[i]) along ``axis``, 0 where the neighbour is outside."""
+    before = np.zeros_like(x)
+    after = np.zeros_like(x)
+    n = x.shape[axis]
+    if n > r:
+        hi = [slice(None), slice(None)]
+        lo = [slice(None), slice(None)]
+        hi[axis], lo[axis] = slice(r, n), slice(0, n - r)
+        d = x[tuple(hi)] - x[tuple(lo)]
+        before[tuple(hi)] = d
+        after[tuple(lo)] = d
+    return before, after
+
+
+def _run_lengths(joined: NDArray[np.bool_], axis: int) -> NDArray[np.int32]:
+    """Length of the run each pixel belongs to; ``joined[i]`` links pixel i to i+1 along ``axis``."""
+    j = joined if axis == 1 else joined.T
+    j = np.ascontiguousarray(j)
+    j[:, -1] = False  # runs end at the image border
+    flat = j.reshape(-1)
+    starts = np.empty(flat.size, bool)
+    starts[0] = True
+    starts[1:] = ~flat[:-1]
+    run_id = np.cumsum(starts, dtype=np.int32) - 1
+    lengths = np.bincount(run_id).astype(np.int32)
+    out = lengths[run_id].reshape(j.shape)
+    return out if axis == 1 else out.T
+
+
+def _group(
+    colors: NDArray[np.uint8],
+    ulab: NDArray[np.float64],
+    evidence: NDArray[np.int64],
+    free: NDArray[np.bool_],
+    minimum: int,
+) -> list[tuple[NDArray[np.uint8], int, NDArray[np.bool_]]]:
+    """Greedy grouping by evidence; returns (colour, evidence, members) of groups >= minimum.
+
+    The loop runs once per group (not per colour); groups below ``minimum`` are
+    consumed without being kept, and the loop stops when the evidence left in
+    all free colours together is below ``minimum``.
+    """
+    free = free & (evidence > 0)
+    out = []
+    ev = evidence.astype(np.int64)
+    while True:
+        left = np.flatnonzero(free)
+        if left.size == 0 or int(ev[left].sum()) < minimum:
+            break
+        seed = left[np.argmax(ev[left])]
+        members_idx = left[_same(colors[left], ulab[left], colors[seed], ulab[seed])]
+        free[members_idx] = False
+        total = int(ev[members_idx].sum())
+        if total < minimum:
+            continue
+        members = np.zeros(colors.shape[0], bool)
+        members[members_idx] = True
+        # Re-centre among the colours no stronger group has claimed.
+        claimable = free.copy()
+        claimable[members_idx] = True
+        rep = _refine(colors, np.where(claimable, ev, 0), _weighted_median(colors[members_idx], ev[members_idx]))
+        out.append((rep, total, members))
+    return out
+
+
+def _refine(colors: NDArray[np.uint8], ev: NDArray[np.int64], rep: NDArray[np.uint8]) -> NDArray[np.uint8]:
+    """Re-centre a group's colour on the median of the evidence within REFINE_CODES of it.
+
+    The seed of a group is its most frequent colour, which in a JPEG is just
+    one draw from the noise cloud; the median of the whole cloud is the drawn
+    colour (a few steps of a median shift, at most ``_REFINE_STEPS``).
+    """
+    has = ev > 0
+    cols = colors[has].astype(np.int16)
+    w = ev[has]
+    for _ in range(_REFINE_STEPS):
+        near = np.abs(cols - rep.astype(np.int16)).max(axis=1) <= REFINE_CODES
+        if not near.any():
+            break
+        new = _weighted_median(cols[near].astype(np.uint8), w[near])
+        if np.array_equal(new, rep):
+            break
+        rep = new
+    return rep
+
+
+def _same(
+    colors: NDArray[np.uint8], lab: NDArray[np.float64], color: NDArray[np.uint8], lab1: NDArray[np.float64]
+) -> NDArray[np.bool_]:
+    """True where ``colors`` are within the noise radius of ``color`` (ΔE00 or codes)."""
+    codes = np.abs(colors.astype(np.int16) - color.astype(np.int16)).max(axis=1)
+    return (codes <= NOISE_CODES) | (delta_e_2000(lab, lab1) <= NOISE_DELTA_E)
+
+
+def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> NDArray[np.uint8]:
+    """Per-channel weighted median (lower median) of 8-bit colours."""
+    out = np.empty(colors.shape[1], np.uint8)
+    half = weights.sum() / 2.0
+    for ch in range(colors.shape[1]):
+        hist = np.bincount(colors[:, ch], weights=weights, minlength=256)
+        out[ch] = int(np.searchsorted(np.cumsum(hist), half))
+    return out
+
+
+def _nearest(lab_a: NDArray[np.float64], lab_b: NDArray[np.float64]) -> tuple[NDArray[np.int64], NDArray[np.float64]]:
+    """Nearest of ``lab_b`` for each of ``lab_a`` by CIEDE2000.
+
+    The two nearest by ΔE*ab are scored with CIEDE2000 and the better kept; this
+    avoids an N x K CIEDE2000 matrix for images with many colours.
+    """
+    lab_a = np.asarray(lab_a, np.float64)
+    lab_b = np.asarray(lab_b, np.float64)
+    n, k = lab_a.shape[0], lab_b.shape[0]
+    if k == 0:
+        return np.full(n, -1, np.int64), np.full(n, np.inf)
+    idx = np.empty(n, np.int64)
+    dist = np.empty(n)
+    for s in range(0, n, _CHUNK):
+        part = lab_a[s : s + _CHUNK]
+        dab = delta_e_1976(part[:, None, :], lab_b[None, :, :])
+        top = np.argsort(dab, axis=1)[:, : min(2, k)]
+        d00 = delta_e_2000(part[:, None, :], lab_b[top])
+        best = np.argmin(d00, axis=1)
+        rows = np.arange(part.shape[0])
+        idx[s : s + _CHUNK] = top[rows, best]
+        dist[s : s + _CHUNK] = d00[rows, best]
+    return idx, dist
+
+
+def _merge_close(colors, kinds, strength, lab):
+    """Fold candidates within the noise radius of a better-founded one into it.
+
+    Fills outrank lines and lines outrank strokes (flat evidence fixes a colour
+    more precisely than the middle of a thin mark); within a kind, more
+    evidence wins.
+    """
+    priority = np.select([kinds == "fill", kinds == "line"], [0, 1], 2)
+    order = np.lexsort((-strength, priority))
+    colors, kinds, strength = colors[order], kinds[order], strength[order]
+    plab = np.asarray(lab(colors), np.float64)
+    keep = np.ones(colors.shape[0], bool)
+    for i in range(colors.shape[0]):
+        if not keep[i]:
+            continue
+        later = np.arange(i + 1, colors.shape[0])
+        close = later[keep[later] & _same(colors[later], plab[later], colors[i], plab[i])]
+        keep[close] = False
+    return colors[keep], kinds[keep], strength[keep]
+
+
+def _drop_blends(colors, kinds, strength, lab):
+    """Drop line and stroke candidates that are noise around, or blends of, other colours.
+
+    Strongest first, a line candidate within twice :data:`NOISE_CODES` of a
+    fill, and a stroke candidate within twice :data:`NOISE_CODES` or twice
+    :data:`NOISE_DELTA_E` of a fill, a line or a stronger stroke colour, is
+    taken as that colour:
+    thin marks are never free of blending or of compression ringing, so their
+    colour is known less precisely than a fill's. (Lines get the code radius
+    only: a light gray gridline is about 5 ΔE00 from white paper but far apart
+    in codes.) Then, weakest first, a stroke candidate that lies between two
+    other palette colours (see :func:`_best_pair`) is a blend.
+    """
+    keep = np.ones(colors.shape[0], bool)
+    plab = np.asarray(lab(colors), np.float64)
+    rank = np.empty(colors.shape[0], np.int64)
+    rank[np.argsort(-strength, kind="stable")] = np.arange(colors.shape[0])
+    for i in np.argsort(-strength, kind="stable"):
+        if kinds[i] == "fill":
+            continue
+        if kinds[i] == "line":
+            ref = np.flatnonzero(keep & (kinds == "fill"))
+        else:  # strokes: any fill or line, or a stronger stroke
+            ref = np.flatnonzero(keep & ((kinds != "stroke") | (rank < rank[i])))
+        ref = ref[ref != i]
+        if ref.size == 0:
+            continue
+        codes = np.abs(colors[ref].astype(np.int16) - colors[i].astype(np.int16)).max(axis=1)
+        near = codes <= 2 * NOISE_CODES
+        if kinds[i] == "stroke":
+            near |= delta_e_2000(plab[ref], plab[i]) <= 2 * NOISE_DELTA_E
+        if np.any(near):
+            keep[i] = False
+    for i in np.argsort(strength, kind="stable"):
+        if kinds[i] != "stroke" or not keep[i]:
+            continue
+        others = np.flatnonzero(keep)
+        others = others[others != i]
+        if others.size >= 2:
+            _, _, resid = _best_pair(colors[i : i + 1], colors[others], nearest_only=False)
+            if resid[0] <= BLEND_TOLERANCE:
+                keep[i] = False
+    return colors[keep], kinds[keep]
+
+
+def _linear(codes: NDArray[np.float64]) -> NDArray[np.float64]:
+    """IEC 61966-2-1 sRGB decoding, expressed again in 0..255 so tolerances stay in codes."""
+    v = codes / 255.0
+    return 255.0 * np.where(v <= 0.04045, v / 12.92, ((v + 0.055) / 1.055) ** 2.4)
+
+
+def _best_pair(
+    x: NDArray[np.uint8], p: NDArray[np.uint8], nearest_only: bool = True
+) -> tuple[NDArray[np.int64], NDArray[np.float64], NDArray[np.float64]]:
+    """Best two-colour blend explanation of each colour in ``x`` by the colours ``p``.
+
+    All pairs are tried when the palette has at most ``_PARENTS`` colours
+    (nearly every chart); beyond that only pairs among the ``_PARENTS``
+    palette colours nearest to each colour (Euclidean, encoded values), which
+    keeps the work linear in the palette size.
+
+    Returns (pair (M, 2) indices into p, fraction of the first parent in
+    encoded values, residual in codes). The residual is the smaller of the
+    largest-channel distance to the segment in encoded values and in linear
+    light (sRGB decoding; RGB and gray only: CMYK files are mixed in ink values).
+    Pairs whose fraction is not inside [BLEND_MIN_FRACTION, 1 - BLEND_MIN_FRACTION]
+    do not count.
+    """
+    m, k = x.shape[0], p.shape[0]
+    pair = np.full((m, 2), -1, np.int64)
+    frac = np.full(m, np.nan)
+    resid = np.full(m, np.inf)
+    if k < 2 or m == 0:
+        return pair, frac, resid
+    near = min(k, _PARENTS) if nearest_only else k
+    j0, j1 = np.triu_indices(near, 1)
+    pf = p.astype(np.float64)
+    pl = _linear(pf) if p.shape[1] in (1, 3) else None
+    for s in range(0, m, _CHUNK):
+        xs = x[s : s + _CHUNK].astype(np.float64)
+        rows = np.arange(xs.shape[0])[:, None]
+        if near == k:
+            nearest = np.broadcast_to(np.arange(k), (xs.shape[0], k))
+        else:
+            dist = np.einsum("mkc,mkc->mk", xs[:, None, :] - pf[None], xs[:, None, :] - pf[None])
+            nearest = np.argsort(dist, axis=1, kind="stable")[:, :near]
+        ia, ib = nearest[:, j0], nearest[:, j1]  # (m, P) palette indices of each pair
+        t_e, r = _segment(xs, pf[ia], pf[ib])
+        if pl is not None:
+            _, r_lin = _segment(_linear(xs), pl[ia], pl[ib])
+            r = np.minimum(r, r_lin)
+        ok = (t_e >= BLEND_MIN_FRACTION) & (t_e <= 1.0 - BLEND_MIN_FRACTION)
+        r = np.where(ok, r, np.inf)
+        best = np.argmin(r, axis=1)
+        rb = r[rows[:, 0], best]
+        found = np.isfinite(rb)
+        pair[s : s + _CHUNK] = np.where(
+            found[:, None], np.stack([ia[rows[:, 0], best], ib[rows[:, 0], best]], axis=1), -1
+        )
+        frac[s : s + _CHUNK] = np.where(found, t_e[rows[:, 0], best], np.nan)
+        resid[s : s + _CHUNK] = rb
+    return pair, frac, resid
+
+
+def _segment(
+    x: NDArray[np.float64], a: NDArray[np.float64], b: NDArray[np.float64]
+) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """Fraction t of ``a`` for x ≈ t a + (1 - t) b, and the largest-channel residual.
+
+    ``x`` is (m, C); ``a`` and ``b`` are (m, P, C).
+    """
+    ab = a - b
+    denom = np.einsum("mpc,mpc->mp", ab, ab)
+    t = np.einsum("mpc,mpc->mp", x[:, None, :] - b, ab) / np.where(denom > 0, denom, 1.0)
+    t = np.where(denom > 0, t, np.nan)
+    r = np.abs(b + np.clip(t, 0.0, 1.0)[..., None] * ab - x[:, None, :]).max(axis=2)
+    return t, np.where(denom > 0, r, np.inf)
+
+
+def _label(
+    ucolors: NDArray[np.uint8], ulab: NDArray[np.float64], colors: NDArray[np.uint8], plab: NDArray[np.float64]
+) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64]]:
+    """Step 5: palette index, BLEND or OTHER for every unique colour."""
+    n = ucolors.shape[0]
+    idx, dist = _nearest(ulab, plab)
+    labels = np.where(dist <= NOISE_DELTA_E, idx, OTHER).astype(np.int64)
+    # Within NOISE_CODES of a palette colour also counts as its noise.
+    rest = np.flatnonzero(labels == OTHER)
+    pc = colors.astype(np.int16)
+    for s in range(0, rest.size, _CHUNK):
+        part = rest[s : s + _CHUNK]
+        codes = np.abs(ucolors[part].astype(np.int16)[:, None, :] - pc[None]).max(axis=2)
+        j = np.argmin(codes, axis=1)
+        close = codes[np.arange(part.size), j] <= NOISE_CODES
+        labels[part[close]] = j[close]
+    parents = np.full((n, 2), -1, np.int64)
+    mix = np.full(n, np.nan)
+    rest = np.flatnonzero(labels == OTHER)
+    if rest.size:
+        pair, frac, resid = _best_pair(ucolors[rest], colors)
+        is_blend = resid <= BLEND_TOLERANCE
+        hit = rest[is_blend]
+        labels[hit] = BLEND
+        parents[hit] = pair[is_blend]
+        mix[hit] = frac[is_blend]
+    return labels, parents, mix
