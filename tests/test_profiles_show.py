@@ -18,6 +18,7 @@ from inkshift.cli import app
 from inkshift.icc.cms import srgb_profile_bytes, transform_colors
 from inkshift.icc.read import read_profile
 from inkshift.icc.summary import profile_summary, total_ink_limit
+from inkshift.printing.gamut import gamut_summary
 
 GS = "/usr/share/color/icc/ghostscript"
 DEFAULT_CMYK = f"{GS}/default_cmyk.icc"
@@ -87,7 +88,24 @@ def test_show_json_equals_the_summary() -> None:
     path = require_file(DEFAULT_CMYK)
     result = runner.invoke(app, ["profiles", "show", str(path), "--json"])
     assert result.exit_code == 0, result.output
-    assert json.loads(result.output) == json.loads(json.dumps(profile_summary(read_profile(path))))
+    shown = json.loads(result.output)
+    gamut = shown.pop("gamut")
+    assert shown == json.loads(json.dumps(profile_summary(read_profile(path))))
+    assert gamut == json.loads(json.dumps(gamut_summary(read_profile(path))))
+
+
+def test_show_prints_gamut_volume_of_shipped_profiles() -> None:
+    # Fact of the trade: coated stock holds a larger gamut than uncoated, and
+    # uncoated than newsprint; every offset gamut is smaller than sRGB's.
+    volumes = {}
+    for name in ("coated", "uncoated", "newsprint"):
+        result = runner.invoke(app, ["profiles", "show", name, "--json"])
+        assert result.exit_code == 0, result.output
+        volumes[name] = json.loads(result.output)["gamut"]["gamut_volume"]
+        text = runner.invoke(app, ["profiles", "show", name]).output
+        assert f"gamut volume     {volumes[name]:,.0f} cubic CIELAB units" in text
+    srgb = gamut_summary(read_profile(srgb_profile_bytes()))["gamut_volume"]
+    assert srgb > volumes["coated"] > volumes["uncoated"] > volumes["newsprint"] > 0
 
 
 def test_show_text_cmyk_lists_the_ink_limit() -> None:

@@ -10,6 +10,7 @@ import typer
 from inkshift.cli import profiles_app
 from inkshift.icc.read import read_profile
 from inkshift.icc.summary import profile_summary
+from inkshift.printing.gamut import gamut_summary
 from inkshift.shipped import resolve_profile
 
 __all__ = ["show_command", "format_summary"]
@@ -20,8 +21,10 @@ def show_command(
     profile: str = typer.Argument(..., help="An ICC file, or the short name of a shipped profile."),
     as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
 ) -> None:
-    """Describe an ICC profile: class, colour spaces, white and black, transforms per intent, ink limit."""
-    summary = profile_summary(read_profile(resolve_profile(profile)))
+    """Describe an ICC profile: class, colour spaces, white and black, transforms per intent, ink limit, gamut volume."""
+    icc = read_profile(resolve_profile(profile))
+    summary = profile_summary(icc)
+    summary["gamut"] = gamut_summary(icc)
     typer.echo(json.dumps(summary, indent=2, ensure_ascii=False) if as_json else format_summary(summary))
 
 
@@ -66,6 +69,10 @@ def format_summary(summary: dict[str, Any]) -> str:
             rows.append(("total ink limit", f"{limit:.1f} % (max over the B2A tables: {per_tag})"))
     if summary.get("gamut_tag"):
         rows.append(("gamut tag", summary["gamut_tag"]))
+    gamut = summary.get("gamut")
+    if gamut:
+        rows.append(("gamut volume", f"{gamut['gamut_volume']:,.0f} cubic CIELAB units (ICC-absolute)"))
+        rows.append(("covers sRGB", f"{100 * gamut['srgb_coverage']:.1f} % of its volume"))
     width = max(len(label) for label, _ in rows) + 2
     lines = [f"{label:<{width}}{value}" for label, value in rows]
 
