@@ -309,3 +309,24 @@ def gamut_coverage(profile: Any, source: Any = None, *, ink_limit: float | None 
     if total <= 0.0:
         raise ProfileError("<source profile>", "the source gamut has no volume")
     return intersection_volume(target, src) / total
+
+
+GAMUT_CLASSES = ("prtr", "mntr", "scnr")
+"""Device classes whose gamut :func:`gamut_summary` measures (output, display, input)."""
+
+
+def gamut_summary(profile: Any) -> dict[str, float] | None:
+    """Return ``{"gamut_volume": ..., "srgb_coverage": ...}`` for a device profile, else None.
+
+    Both are ICC-absolute (see the module notes). Profiles of other classes
+    (colour space, abstract, device link, named colour) or with a CIELAB or
+    XYZ data space have no device gamut to measure and give None.
+    """
+    if getattr(profile, "device_class", None) not in GAMUT_CLASSES or profile.color_space in ("LAB", "XYZ"):
+        return None
+    descriptor = gamut_descriptor(profile)
+    srgb = gamut_descriptor(srgb_profile_bytes())
+    return {
+        "gamut_volume": float(descriptor.volume),
+        "srgb_coverage": float(intersection_volume(descriptor, srgb) / srgb.volume) if srgb.volume > 0 else 0.0,
+    }
