@@ -31,6 +31,7 @@ from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile, read_profile
 from inkshift.proof import ColorProof, check_output_profile, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE, gray_check, vision_check
 from inkshift.report.model import (
     CheckReport,
     ImageInfo,
@@ -227,6 +228,9 @@ def check(
     thresholds: Thresholds = Thresholds(),
     max_pixels: int | None = None,
     keep_maps: bool = True,
+    gray_profile: str | Path | Profile | None = GRAY_PROFILE,
+    gray_delta_l: float = GRAY_MERGE_DELTA_L,
+    vision_severity: float | None = 1.0,
 ) -> CheckReport:
     """Soft-proof a chart image on an output profile and judge its palette.
 
@@ -248,6 +252,12 @@ def check(
         Refuse images with more pixels than this (default: the loader's limit).
     keep_maps
         Keep the full-resolution arrays in ``report.maps`` for the pictures.
+    gray_profile, gray_delta_l
+        Grayscale output profile of the black-and-white check and the gray
+        ΔL* under which distinct colours merge there (None skips the check).
+    vision_severity
+        Severity (0..1) of the simulated colour-vision deficiencies (None
+        skips the check).
     """
     intent = parse_intent(intent)
     output, profile_info = open_output_profile(profile)
@@ -276,6 +286,17 @@ def check(
     merges, losses = pair_verdicts(labels, pal_proof.screen_lab, pal_proof.print_lab, thresholds)
     merged = {m.a for m in merges} | {m.b for m in merges}
     colors = [replace(c, verdicts=c.verdicts + ("merges",)) if c.hex in merged else c for c in colors]
+    gray = None
+    if gray_profile is not None:
+        gray = gray_check(
+            palette.colors, source, labels, gray_profile=gray_profile, intent=intent, bpc=bpc,
+            thresholds=thresholds, min_delta_l=gray_delta_l,
+        )
+    vision = None
+    if vision_severity is not None:
+        vision = vision_check(
+            labels, pal_proof.screen_lab, pal_proof.print_lab, severity=vision_severity, thresholds=thresholds
+        )
 
     maps = None
     if keep_maps:
@@ -318,9 +339,11 @@ def check(
         merges=merges,
         separation_losses=losses,
         thresholds=thresholds,
+        gray=gray,
+        vision=vision,
         cautions=cautions_for(
             shipped_profile=profile_info.name if profile_info.shipped else None,
-            vision=False,
+            vision=vision is not None,
             assumed_srgb=assumed and chart.space != "CMYK",
         ),
         extra=extra,

@@ -31,6 +31,7 @@ from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import read_profile
 from inkshift.printing.gamut import gamut_coverage, gamut_volume
+from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.report.model import CheckReport, ImageInfo, hex_rgb
 from inkshift.thresholds import Thresholds
 
@@ -141,6 +142,8 @@ class CompareReport:
             "profiles": [p.to_dict() for p in self.profiles],
             "colors": colors,
             "merges": {p.name: [m.to_dict() for m in p.check.merges] for p in self.profiles},
+            "gray": first.gray.to_dict() if first.gray is not None else None,
+            "vision": {p.name: p.check.vision.to_dict() for p in self.profiles if p.check.vision is not None},
             "differences": [d.to_dict() for d in self.differences],
             "best": self.best,
             "verdict": self.verdict,
@@ -181,6 +184,9 @@ def compare(
     paper: bool = False,
     thresholds: Thresholds = Thresholds(),
     max_pixels: int | None = None,
+    gray_profile: str | Path | None = GRAY_PROFILE,
+    gray_delta_l: float = GRAY_MERGE_DELTA_L,
+    vision_severity: float | None = 1.0,
 ) -> CompareReport:
     """Proof one chart against two or more output profiles and rank them.
 
@@ -193,7 +199,10 @@ def compare(
     chart = load_chart(image, **({} if max_pixels is None else {"max_pixels": max_pixels}))
     outcomes: list[ProfileOutcome] = []
     for spec in profiles:
-        rep = check(chart, spec, intent, bpc=bpc, paper=paper, thresholds=thresholds, keep_maps=False)
+        rep = check(
+            chart, spec, intent, bpc=bpc, paper=paper, thresholds=thresholds, keep_maps=False,
+            gray_profile=gray_profile, gray_delta_l=gray_delta_l, vision_severity=vision_severity,
+        )
         out_profile = read_profile(rep.output_profile.path)
         outcomes.append(
             ProfileOutcome(
@@ -236,8 +245,8 @@ def compare(
         best=ranked[0].name,
         verdict=_verdict(ranked),
         cautions=cautions_for(
-            shipped_profile=", ".join(o.name for o in outcomes if o.shipped) or None,
-            vision=False,
+            shipped_profile=[o.name for o in outcomes if o.shipped],
+            vision=vision_severity is not None,
             assumed_srgb=first.image.profile_assumed and first.image.color_space != "CMYK",
         ),
         pixels_shape=(first.image.height, first.image.width),

@@ -10,6 +10,7 @@ import typer
 
 from inkshift.cli import app
 from inkshift.errors import InputError
+from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.shipped import DEFAULT_PROFILE
 from inkshift.thresholds import (
     DISTINCT_DELTA_E,
@@ -33,6 +34,14 @@ def threshold_options(shift: float, distinct: float, merge: float, loss: float, 
     return Thresholds(shift=shift, distinct=distinct, merge=merge, separation_loss=loss, out_of_gamut=gamut)
 
 
+def check_readability_options(gray_threshold: float, severity: float) -> None:
+    """Refuse impossible values of the black-and-white and colour-vision options."""
+    if not gray_threshold > 0:
+        raise InputError(f"--gray-threshold must be a positive L* difference, got {gray_threshold}")
+    if not 0.0 < severity <= 1.0:
+        raise InputError(f"--severity must lie in (0, 1], got {severity}")
+
+
 @app.command("check")
 def check_command(
     image: Path = typer.Argument(..., help="Chart image: PNG, JPEG, TIFF, WebP, BMP or GIF."),
@@ -49,6 +58,9 @@ def check_command(
     merge: float = typer.Option(MERGE_DELTA_E, "--merge-threshold", help="Print ΔE00 under which distinct colours merge."),
     loss: float = typer.Option(SEPARATION_LOSS_RATIO, "--loss-ratio", help="Share of screen ΔE00 under which a pair loses separation."),
     gamut: float = typer.Option(OUT_OF_GAMUT_DELTA_E, "--gamut-tolerance", help="Round-trip ΔE00 beyond which a colour is out of gamut."),
+    gray_profile: str = typer.Option(GRAY_PROFILE, "--gray-profile", help="Grayscale output profile for the black-and-white check."),
+    gray_threshold: float = typer.Option(GRAY_MERGE_DELTA_L, "--gray-threshold", help="Gray L* difference under which distinct colours merge in black and white."),
+    severity: float = typer.Option(1.0, "--severity", help="Severity 0..1 of the simulated colour-vision deficiencies (1 = dichromacy)."),
     max_pixels: Optional[int] = typer.Option(None, "--max-pixels", help="Refuse images with more pixels than this."),
 ) -> None:
     """Soft-proof a chart and list the colours that shift, leave the gamut or merge in print."""
@@ -60,7 +72,11 @@ def check_command(
     thresholds = threshold_options(shift, distinct, merge, loss, gamut)
     if fail_over is not None and not fail_over >= 0:
         raise InputError(f"--fail-over must be a ΔE00 of 0 or more, got {fail_over}")
-    report = check(image, profile, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels)
+    check_readability_options(gray_threshold, severity)
+    report = check(
+        image, profile, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels,
+        gray_profile=gray_profile, gray_delta_l=gray_threshold, vision_severity=severity,
+    )
     write_check_outputs(report, out if out is not None else default_out_dir(image))
     if as_json:
         typer.echo(json.dumps(report.to_dict(), indent=2))

@@ -9,8 +9,9 @@ from typing import List, Optional
 import typer
 
 from inkshift.cli import app
-from inkshift.commands.check import INTENT_CHOICES, threshold_options
+from inkshift.commands.check import INTENT_CHOICES, check_readability_options, threshold_options
 from inkshift.errors import InputError
+from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.thresholds import (
     DISTINCT_DELTA_E,
     MERGE_DELTA_E,
@@ -35,6 +36,9 @@ def compare_command(
     merge: float = typer.Option(MERGE_DELTA_E, "--merge-threshold", help="Print ΔE00 under which distinct colours merge."),
     loss: float = typer.Option(SEPARATION_LOSS_RATIO, "--loss-ratio", help="Share of screen ΔE00 under which a pair loses separation."),
     gamut: float = typer.Option(OUT_OF_GAMUT_DELTA_E, "--gamut-tolerance", help="Round-trip ΔE00 beyond which a colour is out of gamut."),
+    gray_profile: str = typer.Option(GRAY_PROFILE, "--gray-profile", help="Grayscale output profile for the black-and-white check."),
+    gray_threshold: float = typer.Option(GRAY_MERGE_DELTA_L, "--gray-threshold", help="Gray L* difference under which distinct colours merge in black and white."),
+    severity: float = typer.Option(1.0, "--severity", help="Severity 0..1 of the simulated colour-vision deficiencies (1 = dichromacy)."),
     max_pixels: Optional[int] = typer.Option(None, "--max-pixels", help="Refuse images with more pixels than this."),
 ) -> None:
     """Proof a chart on several output profiles and say which keeps it best."""
@@ -44,7 +48,11 @@ def compare_command(
     if intent.lower() not in INTENT_CHOICES:
         raise InputError(f"unknown rendering intent '{intent}'; use one of: {', '.join(INTENT_CHOICES)}")
     thresholds = threshold_options(shift, distinct, merge, loss, gamut)
-    report = compare(image, profiles, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels)
+    check_readability_options(gray_threshold, severity)
+    report = compare(
+        image, profiles, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels,
+        gray_profile=gray_profile, gray_delta_l=gray_threshold, vision_severity=severity,
+    )
     write_compare_outputs(report, out if out is not None else default_compare_dir(image))
     typer.echo(json.dumps(report.to_dict(), indent=2) if as_json else format_compare(report))
     best = next(p for p in report.profiles if p.name == report.best)

@@ -48,6 +48,8 @@ def format_pairs(title: str, pairs: Sequence[PairVerdict], other: str = "print")
 
 def format_check(report: CheckReport) -> str:
     """Return the console summary of a check: palette table, merges, outputs, cautions."""
+    from inkshift.readability import format_gray, format_vision
+
     img = report.image
     prof = report.output_profile
     s = report.summary
@@ -96,6 +98,12 @@ def format_check(report: CheckReport) -> str:
     else:
         lines.append("")
         lines.append("No chart colours merge in print.")
+    if report.gray is not None:
+        lines.append("")
+        lines.extend(format_gray(report.gray))
+    if report.vision is not None:
+        lines.append("")
+        lines.extend(format_vision(report.vision, t.merge))
     if report.outputs:
         lines.append("")
         lines.append("Written:")
@@ -109,6 +117,8 @@ def format_check(report: CheckReport) -> str:
 
 def format_compare(report: "CompareReport") -> str:
     """Return the console summary of a comparison: profile table, colours, verdict, cautions."""
+    from inkshift.readability import format_gray
+
     img = report.image
     lines = [
         f"Chart:    {img.path or '(in memory)'}  {img.width} x {img.height} px, source profile: {img.source_profile}",
@@ -141,6 +151,20 @@ def format_compare(report: "CompareReport") -> str:
         if pair_lines:
             lines.append("")
             lines.extend(pair_lines)
+    first = report.profiles[0].check
+    if first.gray is not None:
+        lines.append("")
+        lines.extend(format_gray(first.gray))
+    for p in report.profiles:
+        if p.check.vision is None:
+            continue
+        vision_lines = [
+            ln for kind, pairs in p.check.vision.print_merges.items()
+            for ln in format_pairs(f"Merge in print on {p.name} for {kind}", pairs, other=f"print, simulated {kind}")
+        ]
+        if vision_lines:
+            lines.append("")
+            lines.extend(vision_lines)
     if report.differences:
         lines.append("")
         lines.append("Where the prints differ from each other")

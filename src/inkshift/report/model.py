@@ -162,6 +162,10 @@ class CheckReport:
     separation_losses: list[PairVerdict]
     thresholds: Thresholds
     cautions: list[str]
+    gray: Any = None
+    """Black-and-white check (:class:`inkshift.readability.GrayResult`)."""
+    vision: Any = None
+    """Colour-vision check (:class:`inkshift.readability.VisionResult`)."""
     extra: dict[str, Any] = field(default_factory=dict)
     outputs: dict[str, str] = field(default_factory=dict)
     maps: ProofMaps | None = field(default=None, repr=False)
@@ -189,6 +193,10 @@ class CheckReport:
             "merges": [m.to_dict() for m in self.merges],
             "separation_losses": [m.to_dict() for m in self.separation_losses],
         }
+        if self.gray is not None:
+            data["gray"] = self.gray.to_dict()
+        if self.vision is not None:
+            data["vision"] = self.vision.to_dict()
         data.update(self.extra)
         data["outputs"] = dict(self.outputs)
         data["cautions"] = list(self.cautions)
