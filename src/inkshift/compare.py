@@ -32,6 +32,7 @@ from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import read_profile
 from inkshift.printing.gamut import gamut_coverage, gamut_volume
 from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE
+from inkshift.shipped import resolve_profile
 from inkshift.report.model import CheckReport, ImageInfo, hex_rgb
 from inkshift.thresholds import Thresholds
 
@@ -196,6 +197,9 @@ def compare(
     if len(profiles) < 2:
         raise InputError("compare needs at least two output profiles (--profile A --profile B)")
     intent = parse_intent(intent)
+    resolved = [resolve_profile(spec).resolve() for spec in profiles]
+    if len(set(resolved)) != len(resolved):
+        raise InputError("the same output profile was given twice: " + ", ".join(str(p) for p in profiles))
     chart = load_chart(image, **({} if max_pixels is None else {"max_pixels": max_pixels}))
     outcomes: list[ProfileOutcome] = []
     for spec in profiles:
@@ -220,9 +224,6 @@ def compare(
                 check=rep,
             )
         )
-    names = [o.name for o in outcomes]
-    if len(set(names)) != len(names):
-        raise InputError("the same output profile was given twice: " + ", ".join(names))
     counts = outcomes[0].check.unique.counts.astype(np.float64)
     differences = []
     for a, b in combinations(outcomes, 2):
