@@ -60,6 +60,7 @@ import math
 import re
 import tomllib
 from dataclasses import dataclass, field
+from datetime import datetime
 from pathlib import Path
 from typing import Any
 
@@ -229,8 +230,6 @@ def parse_condition(data: dict, source: str) -> Condition:
     if not isinstance(created, str):
         raise ConditionError(source, "created", "must be an ISO 8601 date-time")
     try:
-        from datetime import datetime
-
         datetime.fromisoformat(created)
     except ValueError:
         raise ConditionError(source, "created", f"{created!r} is not an ISO 8601 date-time") from None
