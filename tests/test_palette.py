@@ -29,14 +29,18 @@ BARS = ((31, 119, 180), (214, 96, 20), (44, 160, 44))
 LINE = (148, 52, 160)
 MARKER = (230, 170, 10)
 DRAWN = np.array((PAPER, INK, GRID) + BARS + (LINE, MARKER), np.uint8)
-THIN = [1, 6, 7]  # indices in DRAWN of the axis/text ink, the 3 px line and the markers
+THIN = [1, 2, 6, 7]  # indices in DRAWN of the ink, the gridlines, the 3 px line and the markers
 
 
 def srgb_to_lab(colors: np.ndarray) -> np.ndarray:
     """sRGB 8-bit -> CIELAB D50 via colour-science (the reference conversion)."""
     rgb = np.asarray(colors, np.float64) / 255.0
     xyz = colour.RGB_to_XYZ(
-        rgb, colour.RGB_COLOURSPACES["sRGB"], illuminant=_D50, chromatic_adaptation_transform="Bradford"
+        rgb,
+        colour.RGB_COLOURSPACES["sRGB"],
+        illuminant=_D50,
+        chromatic_adaptation_transform="Bradford",
+        apply_cctf_decoding=True,
     )
     return colour.XYZ_to_Lab(xyz, _D50)
 
@@ -97,27 +101,45 @@ def test_png_chart_gives_exactly_the_drawn_colours(chart):
     assert np.all(np.diff(pal.counts) <= 0)
 
 
+def _stored(chart: np.ndarray, jpeg: np.ndarray) -> np.ndarray:
+    """Per drawn colour, the median of the JPEG pixels that were exactly that colour
+    in the lossless chart: the colour the file actually holds for that mark."""
+    return np.array([np.median(jpeg[(chart == c).all(axis=2)], axis=0) for c in DRAWN])
+
+
+FILLS = [i for i in range(len(DRAWN)) if i not in THIN]  # paper and bars
+
+
 def test_jpeg_444_gives_the_same_palette_within_2(chart):
-    # Quality 85 without chroma subsampling: thin marks keep their colour.
-    pal = extract_palette(_jpeg(chart, 0), srgb_to_lab)
+    # Quality 85 without chroma subsampling.
+    jpeg = _jpeg(chart, 0)
+    pal = extract_palette(jpeg, srgb_to_lab)
     assert len(pal) == len(DRAWN)
     d = _match(pal.lab)
-    assert d.min(axis=1).max() <= 2.0
-    assert d.min(axis=0).max() <= 2.0
+    assert d.min(axis=0).max() <= 2.5  # no colour that was not drawn
+    # Every drawn colour within 2 ΔE00, except the one-pixel gridline: JPEG's
+    # quantisation of fine chroma detail moves its stored colour itself 2.4 ΔE00
+    # (its median over the gridline pixels is (201, 205, 208)).
+    assert np.delete(d.min(axis=1), 2).max() <= 2.0
+    stored = de00(srgb_to_lab(_stored(chart, jpeg))[:, None, :], pal.lab[None, :, :])
+    assert stored.min(axis=1).max() <= 1.0  # what the file holds, found within 1
 
 
-def test_jpeg_420_fills_within_2_thin_marks_lose_chroma(chart):
-    # 4:2:0 stores one chroma sample per 2 x 2 pixels, so marks 2-3 px wide
-    # (the axis, the line) take the chroma of the paper around them: what is on
-    # the page is a paler colour, which no extraction can undo. Fills keep
-    # their colour within 2 ΔE00; thin marks are still found, one per drawn
-    # colour, within 6 (measured 1.1-4.4 here).
-    pal = extract_palette(_jpeg(chart, 2), srgb_to_lab)
+def test_jpeg_420_fills_within_2_thin_marks_as_stored(chart):
+    # Default 4:2:0 subsampling stores one chroma sample per 2 x 2 pixels, so
+    # marks 1-3 px wide (gridline, axis, line) take the chroma of the paper
+    # around them: the file holds paler colours (up to 4.1 ΔE00 from the drawn
+    # ones here) that no extraction can undo. Fills keep their colour within
+    # 2 ΔE00; each thin mark is found within 1 ΔE00 of the colour the file
+    # holds or of the drawn colour (a 10 px marker keeps its colour at the
+    # centre while its rim takes the paper's chroma).
+    jpeg = _jpeg(chart, 2)
+    pal = extract_palette(jpeg, srgb_to_lab)
     assert len(pal) == len(DRAWN)
     d = _match(pal.lab)
-    fills = [i for i in range(len(DRAWN)) if i not in THIN]
-    assert d[fills].min(axis=1).max() <= 2.0
-    assert d[THIN].min(axis=1).max() <= 6.0
+    assert d[FILLS].min(axis=1).max() <= 2.0
+    stored = de00(srgb_to_lab(_stored(chart, jpeg))[:, None, :], pal.lab[None, :, :])
+    assert np.minimum(stored.min(axis=1), d.min(axis=1))[THIN].max() <= 1.0
 
 
 def test_blend_labels_parents_and_mix():

@@ -32,7 +32,7 @@ Method (the project's own; the reasoning is given for each step)
 
 2. **Fills.** Colours with flat pixels are grouped greedily: the colour with
    the most flat pixels seeds a group that takes every colour within the noise
-   radius (:data:`NOISE_DELTA_E` in CIEDE2000, or :data:`NOISE_CODES`); repeat.
+   radius (:data:`NOISE_CODES`, or :data:`NOISE_DELTA_E` in CIEDE2000); repeat.
    A group is a drawn fill when it has :data:`MIN_FLAT_PIXELS` flat pixels,
    unless most of them are graded (a legend's colour ramp) or it is a halo
    (see :func:`_drop_halos`). Its colour is the per-channel median of its
@@ -121,27 +121,32 @@ OTHER = -2
 
 FLAT_TOLERANCE = 6
 """Codes (8-bit, any channel) within which neighbours count as the same colour.
-Chosen by this project from measurement: inside flat fills of the sample charts
-saved as JPEG quality 85 with 4:2:0 chroma subsampling, 99 % of neighbour
-differences are within 6 codes; in lossless PNG they are 0."""
+Chosen by this project from measurement: inside the fills of the three sample
+charts saved as JPEG quality 85, 99 % of neighbour differences are within 4-8
+codes; in lossless PNG they are 0."""
 
-NOISE_DELTA_E = 3.0
-"""CIEDE2000 radius within which colours are one drawn colour plus noise. The JND
-of ΔE00 is about 1 (common practice); JPEG quality 85 scatters the flat fills of
-the sample charts up to about 3 ΔE00 around their drawn colour (measured by this
-project), so colours closer than this are not told apart."""
+NOISE_DELTA_E = 1.0
+"""CIEDE2000 difference under which two colours count as one: about one
+just-noticeable difference (common practice for CIEDE2000). Compression noise
+is covered by :data:`NOISE_CODES`; either suffices."""
 
-NOISE_CODES = 6
-"""Codes (8-bit, largest channel) within which colours are also one drawn colour
-plus noise. JPEG noise is added in YCbCr codes, roughly evenly over the colour
-cube, whereas CIEDE2000 is most sensitive near saturated blue: there the noise
-of the sample charts at quality 85 reaches 3.5 ΔE00 while staying within 6
-codes (measured by this project)."""
+NOISE_CODES = 8
+"""Codes (8-bit, largest channel) within which colours are one drawn colour plus
+noise. JPEG adds its noise in YCbCr codes, so its size in codes hardly depends on
+the colour: inside the fills of the three sample charts saved as JPEG quality 85,
+99 % of pixels are within 4-8 codes of the drawn colour (measured by this
+project), while in CIEDE2000 the same noise is 1.3-2.1 ΔE00 at the 99th
+percentile and larger near black. A ΔE00 radius that large would merge drawn
+colours that are near in ΔE00 but far apart in codes, such as sRGB blue
+(0, 0, 255) and a violet (60, 0, 255), 2.6 ΔE00 apart, or white and a warm
+near-white (244, 243, 240), 2.4 apart."""
 
 REFINE_CODES = 18
 """Codes (largest channel) around a group's colour whose evidence sets its final
-colour: about twice the standard deviation of JPEG quality 85 noise on small
-saturated marks (7-13 codes, measured by this project on the test charts)."""
+colour: the noise of JPEG quality 85 on thin marks and small markers of the test
+chart has a standard deviation of 4-12 codes per channel (measured by this
+project), so this takes in most of the cloud without reaching a neighbouring
+drawn colour."""
 
 MIN_FLAT_PIXELS = 12
 """Flat pixels a fill needs: a marker 6 px across has a flat core of about 12
@@ -595,7 +600,7 @@ def _refine(colors: NDArray[np.uint8], ev: NDArray[np.int64], rep: NDArray[np.ui
 def _same(
     colors: NDArray[np.uint8], lab: NDArray[np.float64], color: NDArray[np.uint8], lab1: NDArray[np.float64]
 ) -> NDArray[np.bool_]:
-    """True where ``colors`` are within the noise radius of ``color`` (ΔE00 or codes)."""
+    """True where ``colors`` are within the noise radius of ``color`` (codes or ΔE00)."""
     codes = np.abs(colors.astype(np.int16) - color.astype(np.int16)).max(axis=1)
     return (codes <= NOISE_CODES) | (delta_e_2000(lab, lab1) <= NOISE_DELTA_E)
 
@@ -660,13 +665,11 @@ def _drop_blends(colors, kinds, strength, lab):
     """Drop line and stroke candidates that are noise around, or blends of, other colours.
 
     Strongest first, a line candidate within twice :data:`NOISE_CODES` of a
-    fill, and a stroke candidate within twice :data:`NOISE_CODES` or twice
-    :data:`NOISE_DELTA_E` of a fill, a line or a stronger stroke colour, is
-    taken as that colour:
-    thin marks are never free of blending or of compression ringing, so their
-    colour is known less precisely than a fill's. (Lines get the code radius
-    only: a light gray gridline is about 5 ΔE00 from white paper but far apart
-    in codes.) Then, weakest first, a stroke candidate that lies between two
+    fill, and a stroke candidate within twice the noise radius (codes or
+    ΔE00) of a fill, a line or a stronger stroke colour, is taken as that
+    colour: thin marks are never free of blending or of compression ringing,
+    so their colour is known less precisely than a fill's. (Lines are held to
+    the code radius.) Then, weakest first, a stroke candidate that lies between two
     other palette colours (see :func:`_best_pair`) is a blend.
     """
     keep = np.ones(colors.shape[0], bool)
@@ -782,7 +785,7 @@ def _label(
     n = ucolors.shape[0]
     idx, dist = _nearest(ulab, plab)
     labels = np.where(dist <= NOISE_DELTA_E, idx, OTHER).astype(np.int64)
-    # Within NOISE_CODES of a palette colour also counts as its noise.
+    # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).
     rest = np.flatnonzero(labels == OTHER)
     pc = colors.astype(np.int16)
     for s in range(0, rest.size, _CHUNK):
