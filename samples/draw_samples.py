@@ -9,8 +9,9 @@ Run ``python samples/draw_samples.py`` to rewrite:
 
 - ``ferry_ridership.png``: grouped bars, passengers per route per quarter.
   Colours include sRGB blue (0, 0, 255) and green (0, 255, 0), an orange, and
-  two vivid blues (an azure and a blue-violet) that are far apart on screen
-  but fall outside offset gamut to nearly the same ink mix.
+  two category blues (a vivid azure and a slate blue) that are clearly apart
+  on screen but both outside offset gamut and clipped to nearly the same ink
+  mix.
 - ``crossing_delays.png``: heat map of mean delay by month and crossing on a
   hue-sweep scale (red, yellow, green, cyan, blue, magenta) with a legend strip.
 - ``fare_mix.png``: stacked bars of ticket types on a single-hue sequential
@@ -37,8 +38,9 @@ ROUTE_COLORS = (
     (0, 0, 255),  # sRGB blue
     (0, 255, 0),  # sRGB green
     (255, 140, 0),  # orange
-    (40, 60, 255),  # vivid azure-blue
-    (60, 0, 255),  # vivid blue-violet: clips next to the azure in offset print
+    (60, 135, 255),  # vivid azure
+    (105, 120, 190),  # slate blue: 12 ΔE00 from the azure on screen, both out of
+    # offset gamut; on the shipped coated profile they print about 3 ΔE00 apart
 )
 QUARTERS = ("Q1", "Q2", "Q3", "Q4")
 # Passengers (thousands) per route per quarter, invented.
