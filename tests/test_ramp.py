@@ -138,6 +138,8 @@ def test_json_report(profiles) -> None:
     assert set(data["steps"][0]["ink"]) == {"c", "m", "y", "k"}
     assert data["steps"][-1]["next"]["print_delta_e"] is None
     assert data["output_profile"]["name"] == "uncoated" and data["gray_profile"]["name"] == "office_gray"
+    # Both shipped profiles are approximations, and the cautions say so (DESIGN.md, cautions).
+    assert any("'uncoated'" in c and "'office_gray'" in c for c in data["cautions"])
 
 
 def test_lab_input_outside_srgb_is_noted(profiles) -> None:

@@ -34,7 +34,7 @@ import numpy as np
 from numpy.typing import NDArray
 from PIL import Image
 
-from inkshift.cautions import SHIPPED_PROFILE, cautions_for
+from inkshift.cautions import cautions_for
 from inkshift.check import INK_NAMES, open_output_profile
 from inkshift.chart.load import load_chart
 from inkshift.color.difference import delta_e_2000
@@ -518,11 +518,8 @@ def check_ramp(
     violations.sort(key=lambda v: (v.step, order[v.rendition], v.problem))
 
     steps = _steps(inp, proof, gproof, output, screen_next, print_next, gray_next, violations)
-    cautions = cautions_for(
-        shipped_profile=out_info.name if out_info.shipped else None, vision=False, assumed_srgb=inp.assumed
-    )
-    if gray_info.shipped and gray_info.name != out_info.name:
-        cautions.insert(-1, SHIPPED_PROFILE.format(name=gray_info.name))
+    shipped = list(dict.fromkeys(i.name for i in (out_info, gray_info) if i.shipped))
+    cautions = cautions_for(shipped_profile=shipped, vision=False, assumed_srgb=inp.assumed)
     notes = inp.notes
     if kind == "diverging":
         notes += ("In black and white a diverging scale keeps its steps but not which side of the "
