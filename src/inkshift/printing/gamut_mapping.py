@@ -26,17 +26,23 @@ absolute colorimetric
     Served by B2A1: the CMM turns ICC-absolute PCS values into media-relative
     ones with the media white point before it uses the table (ICC.1, 6.3.2).
 perceptual (B2A0)
-    Lightness is scaled linearly from the PCS range (L* 0..100) to the print's
-    (L* of the darkest neutral the print reproduces .. 100), so PCS black maps
-    to the print black (taken neutral, as black point detection in CMMs
-    does; a darker but coloured ink stack is not used as "black"). Chroma is
-    compressed along constant hue from the source gamut (sRGB, the colour
-    space of nearly every chart) onto the print gamut with a smooth knee:
-    unchanged up to :data:`KNEE` times the print's maximum chroma, then the
-    rest of the source range is squeezed into the remaining print range by
+    Lightness is first scaled linearly from the PCS range (L* 0..100) to the
+    print's (L* of the darkest neutral the print reproduces .. 100), so PCS
+    black maps to the print black (taken neutral, as black point detection in
+    CMMs does; a darker but coloured ink stack is not used as "black"). Then,
+    in the plane of the colour's own hue, the colour is moved along the line
+    from a focal point on the neutral axis at the lightness of the print's
+    cusp (its most chromatic colour of that hue) through the colour, as in
+    the cusp-oriented compression of CIE 156:2004 (SGCK). Along that line the
+    source gamut (sRGB, the colour space of nearly every chart, after the
+    same lightness scaling) is compressed onto the print gamut with a smooth
+    knee: distances up to :data:`KNEE` times the print boundary's are kept,
+    the rest of the source range is squeezed into the remaining print range by
     ``r x / (1 + (r - 1) x)``, which meets the straight part with the same
     slope and sends the sRGB boundary to the print boundary. Colours beyond
-    sRGB are clipped to the print's maximum chroma at the same L* and hue.
+    sRGB stop at the print boundary. Light saturated colours (bright greens,
+    cyans) thereby get darker and keep chroma instead of fading to pastel.
+    Neutrals keep the linear lightness scaling exactly.
 saturation (B2A2)
     Lightness as in the perceptual intent; chroma scaled by the ratio of the
     print's to the source's maximum chroma at that lightness and hue, so the
@@ -90,6 +96,8 @@ FACE3_STEPS = 21
 """Nodes per axis on each 3-D face of the ink-limited CMYK device box."""
 SRGB_FACE_STEPS = 97
 """Nodes per axis on each face of the sRGB cube."""
+_RAY_LENGTH = 200.0  # CIELAB units: longer than any gamut is wide
+_RAY_STEPS = 100  # samples along a ray before bisection
 _CLIP_COARSE = 2.0  # L* step of the first pass of the minimum-ΔE00 search
 _CLIP_MID = 0.5  # L* step of the second pass, over one coarse step either side
 _CLIP_FINE = 0.125  # L* step of the third pass, over one mid step either side
@@ -157,7 +165,7 @@ def boundary_from_samples(lab: ArrayLike, black: ArrayLike | None = None) -> Gam
         black = np.array([flat_lab[:, 0].min(), 0.0, 0.0])
     black = np.asarray(black, dtype=np.float64)
     # The neutral axis from the black's lightness up to the lightest sample is inside the gamut.
-    neutral_rows = (rows * L_STEP >= black[0]) & (rows * L_STEP <= flat_lab[:, 0].max() + 1e-9)
+    neutral_rows = (rows * L_STEP >= np.floor(black[0] / L_STEP) * L_STEP) & (rows * L_STEP <= flat_lab[:, 0].max() + 1e-9)
     grid[neutral_rows] = np.where(np.isfinite(grid[neutral_rows]), grid[neutral_rows], 0.0)
     return GamutBoundary(cmax=grid, black=black)
 
@@ -301,23 +309,78 @@ def _lightness_map(gbd: GamutBoundary, lab: NDArray[np.float64]) -> tuple[NDArra
     return l_src, lk + l_src * (100.0 - lk) / 100.0
 
 
+def _cusp_lightness(gbd: GamutBoundary, hue: NDArray[np.float64]) -> NDArray[np.float64]:
+    """L* of the most chromatic colour of each hue (linear between hue bins)."""
+    filled = np.where(np.isfinite(gbd.cmax), gbd.cmax, -np.inf)
+    per_bin = np.argmax(filled, axis=0) * L_STEP
+    y = (hue % 360.0) / HUE_STEP
+    j0 = np.floor(y).astype(np.intp) % per_bin.size
+    f = y - np.floor(y)
+    return (1.0 - f) * per_bin[j0] + f * per_bin[(j0 + 1) % per_bin.size]
+
+
+def _exit_distance(
+    chroma_at, origin_l: NDArray[np.float64], dir_l: NDArray[np.float64], dir_c: NDArray[np.float64], hue: NDArray[np.float64]
+) -> NDArray[np.float64]:
+    """Distance from (origin_l, 0) along the unit direction (dir_l, dir_c) to the first point outside a boundary."""
+
+    def outside(dist: NDArray[np.float64]) -> NDArray[np.bool_]:
+        lightness = origin_l[:, None] + dist * dir_l[:, None]
+        cm = chroma_at(lightness, np.broadcast_to(hue[:, None], lightness.shape))
+        return ~(np.isfinite(cm) & (dist * dir_c[:, None] <= cm + 1e-9))
+
+    steps = np.linspace(0.0, _RAY_LENGTH, _RAY_STEPS + 1)[1:]
+    out = outside(np.broadcast_to(steps, (origin_l.size, steps.size)))
+    first = np.where(out.any(axis=1), np.argmax(out, axis=1), steps.size - 1)
+    hi = steps[first]
+    lo = np.where(first > 0, steps[np.maximum(first - 1, 0)], 0.0)
+    for _ in range(20):
+        mid = 0.5 * (lo + hi)
+        o = outside(mid[:, None])[:, 0]
+        hi = np.where(o, mid, hi)
+        lo = np.where(o, lo, mid)
+    return lo
+
+
 def map_perceptual(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | None = None) -> NDArray[np.float64]:
     """Return the perceptual-intent image of media-relative CIELAB colours (see the module docstring)."""
-    lch = lab_to_lch(lab)
+    lch = lab_to_lch(np.asarray(lab, dtype=np.float64))
+    shape = lch.shape
+    lch = lch.reshape(-1, 3)
     source = source or srgb_gamut_boundary()
-    l_src, l_dst = _lightness_map(gbd, lch)
-    c, h = lch[..., 1], lch[..., 2]
-    cs = np.nan_to_num(max_chroma(source, l_src, h), nan=0.0)
-    cd = np.maximum(np.nan_to_num(max_chroma(gbd, l_dst, h), nan=0.0), 0.0)
-    knee = KNEE * cd
-    compress = (cs > cd) & (c > knee) & (cd > 0)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        r = (cs - knee) / (cd - knee)
-        x = (c - knee) / (cs - knee)
-        squeezed = knee + (cd - knee) * r * x / (1.0 + (r - 1.0) * x)
-    c_new = np.minimum(np.where(compress, squeezed, c), cd)
-    mapped = lch_to_lab(np.stack([l_dst, c_new, h], axis=-1))
-    return mapped
+    _, l_dst = _lightness_map(gbd, lch)
+    c, h = lch[:, 1], lch[:, 2]
+    if not np.nanmax(gbd.cmax) > 0.0:  # one-ink print: only the neutral axis
+        return lch_to_lab(np.stack([l_dst, np.zeros_like(c), h], axis=-1)).reshape(shape)
+    lk = gbd.black[0]
+
+    def source_chroma(lightness, hue):  # the source boundary after the lightness scaling
+        return max_chroma(source, (lightness - lk) * 100.0 / (100.0 - lk), hue)
+
+    def print_chroma(lightness, hue):
+        return max_chroma(gbd, lightness, hue)
+
+    focus = _cusp_lightness(gbd, h)
+    dl, dc = l_dst - focus, c
+    dist = np.hypot(dl, dc)
+    moving = dist > 1e-9
+    out = np.stack([l_dst, c, h], axis=-1)
+    if moving.any():
+        idx = np.nonzero(moving)[0]
+        ul, uc = dl[idx] / dist[idx], dc[idx] / dist[idx]
+        s_src = _exit_distance(source_chroma, focus[idx], ul, uc, h[idx])
+        s_dst = _exit_distance(print_chroma, focus[idx], ul, uc, h[idx])
+        s = dist[idx]
+        knee = KNEE * s_dst
+        compress = (s_src > s_dst) & (s > knee) & (s_dst > 0)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            r = (s_src - knee) / (s_dst - knee)
+            x = (s - knee) / (s_src - knee)
+            squeezed = knee + (s_dst - knee) * r * x / (1.0 + (r - 1.0) * x)
+        s_new = np.minimum(np.where(compress, squeezed, s), s_dst)
+        out[idx, 0] = focus[idx] + s_new * ul
+        out[idx, 1] = s_new * uc
+    return lch_to_lab(out).reshape(shape)
 
 
 def map_saturation(gbd: GamutBoundary, lab: ArrayLike, source: GamutBoundary | None = None) -> NDArray[np.float64]:
