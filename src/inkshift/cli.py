@@ -51,6 +51,7 @@ from inkshift.commands import check  # noqa: E402,F401
 from inkshift.commands import compare  # noqa: E402,F401
 from inkshift.commands import ramp  # noqa: E402,F401
 from inkshift.commands import swatches  # noqa: E402,F401
+from inkshift.commands import replace  # noqa: E402,F401
 
 
 def main() -> None:
