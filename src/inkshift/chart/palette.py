@@ -205,6 +205,10 @@ _REFINE_STEPS = 4  # median-shift steps when re-centring a group's colour
 _PARENTS = 16  # nearest palette colours (Euclidean, codes) among which a blend's parents are sought
 
 
+_Group = tuple[NDArray[np.uint8], int, NDArray[np.bool_]]  # (colour, evidence, member mask)
+_LabFn = Callable[[NDArray[np.uint8]], NDArray[np.float64]]
+
+
 @dataclass(frozen=True)
 class Palette:
     """The drawn colours of a chart.
@@ -284,14 +288,12 @@ def extract_palette(
     inverse = u.inverse
 
     if alpha is None:
-        counted = None
         evidence_ok = None
         totals = u.counts.astype(np.int64)
     else:
         a = np.asarray(alpha).reshape(-1)
-        counted = a > 0
         evidence_ok = (a == 255).reshape(h, w)
-        totals = np.bincount(inverse[counted], minlength=n).astype(np.int64)
+        totals = np.bincount(inverse[a > 0], minlength=n).astype(np.int64)
 
     flat_n, core_n, line_n, graded_n, rim_n = _evidence_counts(pixels, evidence_ok, inverse, n)
 
@@ -307,7 +309,7 @@ def extract_palette(
     for g in fills:
         members_taken |= g[2]
 
-    # Step 3: strokes, among colours not already explained by a fill.
+    # Step 3: lines, then strokes, among colours not already explained by a fill.
     near_fill = np.zeros(n, bool)
     if cand_colors:
         fill_colors = np.array(cand_colors, np.uint8)
@@ -330,10 +332,14 @@ def extract_palette(
     # The most common colour is always in the palette (a tiny or uniform image
     # may have no evidence at all).
     top = int(np.argmax(totals))
-    covered = any(
-        bool(_same(u.colors[top : top + 1], ulab[top : top + 1], np.asarray(col, np.uint8), np.asarray(lab(np.array([col], np.uint8)), np.float64)[0])[0])
-        for col in cand_colors
-    )
+    covered = False
+    if cand_colors:
+        cand = np.array(cand_colors, np.uint8)
+        cand_lab = np.asarray(lab(cand), np.float64)
+        covered = any(
+            bool(_same(u.colors[top : top + 1], ulab[top : top + 1], col, clab)[0])
+            for col, clab in zip(cand, cand_lab)
+        )
     if not covered:
         cand_colors.append(u.colors[top])
         cand_kind.append("fill")
@@ -481,7 +487,7 @@ def _near(mask: NDArray[np.bool_], reach: int) -> NDArray[np.bool_]:
     return out
 
 
-def _drop_halos(groups, rim_n, lab):
+def _drop_halos(groups: list[_Group], rim_n: NDArray[np.int64], lab: _LabFn) -> list[_Group]:
     """Drop fill groups that are compression halos or wide blends of stronger fills.
 
     A group whose flat pixels lie almost all (:data:`HALO_RIM_SHARE`) within
@@ -546,7 +552,7 @@ def _group(
     evidence: NDArray[np.int64],
     free: NDArray[np.bool_],
     minimum: int,
-) -> list[tuple[NDArray[np.uint8], int, NDArray[np.bool_]]]:
+) -> list[_Group]:
     """Greedy grouping by evidence; returns (colour, evidence, members) of groups >= minimum.
 
     The loop runs once per group (not per colour); groups below ``minimum`` are
@@ -640,7 +646,9 @@ def _nearest(lab_a: NDArray[np.float64], lab_b: NDArray[np.float64]) -> tuple[ND
     return idx, dist
 
 
-def _merge_close(colors, kinds, strength, lab):
+def _merge_close(
+    colors: NDArray[np.uint8], kinds: NDArray[np.str_], strength: NDArray[np.float64], lab: _LabFn
+) -> tuple[NDArray[np.uint8], NDArray[np.str_], NDArray[np.float64]]:
     """Fold candidates within the noise radius of a better-founded one into it.
 
     Fills outrank lines and lines outrank strokes (flat evidence fixes a colour
@@ -661,7 +669,9 @@ def _merge_close(colors, kinds, strength, lab):
     return colors[keep], kinds[keep], strength[keep]
 
 
-def _drop_blends(colors, kinds, strength, lab):
+def _drop_blends(
+    colors: NDArray[np.uint8], kinds: NDArray[np.str_], strength: NDArray[np.float64], lab: _LabFn
+) -> tuple[NDArray[np.uint8], NDArray[np.str_]]:
     """Drop line and stroke candidates that are noise around, or blends of, other colours.
 
     Strongest first, a line candidate within twice :data:`NOISE_CODES` of a
