@@ -81,19 +81,7 @@ def test_all_four_profiles_are_shipped():
         assert p.color_space == ("GRAY" if name == "office_gray" else "CMYK")
 
 
-# Known failure, reported to the tables' owner: coated's B2A nodes just past the
-# dark end of the gamut get device values far from their in-gamut neighbours
-# (node L* 9.4, a* 0, b* 8 -> C 0 M 64 Y 100 K 99 beside C 37 M 25 Y 100 K 100), so
-# interpolation in cells straddling the boundary misses dark in-gamut colours
-# (measured: mean 0.24, p95 1.21, max 4.0 ΔE00; 7 % of samples above 1, all
-# L* < 29 with K > 0.67). strict: the marker must go when the tables are fixed.
-_COATED_DARK_INTERPOLATION = pytest.mark.xfail(
-    strict=True, reason="coated B2A: dark cells straddling the gamut boundary (p95 ~1.2 ΔE00)"
-)
-ROUND_TRIP_CASES = [pytest.param("coated", marks=_COATED_DARK_INTERPOLATION), "uncoated", "newsprint"]
-
-
-@pytest.mark.parametrize("name", ROUND_TRIP_CASES)
+@pytest.mark.parametrize("name", CMYK)
 def test_round_trip_through_project_evaluator(name):
     prof = shipped(name)
     lab = device_to_lab(prof, _ink_limited_cmyk(condition(name).total_area_coverage), Intent.RELATIVE)
@@ -104,7 +92,7 @@ def test_round_trip_through_project_evaluator(name):
     assert np.percentile(de, 95) <= ROUND_TRIP_P95
 
 
-@pytest.mark.parametrize("name", ROUND_TRIP_CASES)
+@pytest.mark.parametrize("name", CMYK)
 def test_round_trip_through_littlecms(name):
     # LittleCMS runs 8-bit here: the Lab sent in is rounded to Pillow's LAB
     # bytes (L* steps of 0.39, a*/b* steps of 1) and the round trip is measured
