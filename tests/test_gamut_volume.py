@@ -122,3 +122,16 @@ def test_print_gamut_is_smaller_than_srgb_and_covers_part_of_it():
     assert 150_000 < vol < 0.8 * gamut_volume(srgb_profile_bytes())
     assert 0.2 < cov < 0.9
     assert gamut_coverage(srgb_profile_bytes()) == pytest.approx(1.0, abs=1e-12)
+
+
+def test_gamut_summary_agrees_with_volume_and_coverage():
+    from inkshift.icc.cms import lab_profile
+    from inkshift.icc.read import read_profile
+    from inkshift.printing.gamut import gamut_summary
+
+    prof = read_profile(require_file(DEFAULT_CMYK))
+    summary = gamut_summary(prof)
+    assert summary["gamut_volume"] == pytest.approx(gamut_volume(prof), rel=1e-12)
+    assert summary["srgb_coverage"] == pytest.approx(gamut_coverage(prof), rel=1e-12)
+    # A CIELAB colour-space profile has no device gamut.
+    assert gamut_summary(read_profile(lab_profile().tobytes())) is None

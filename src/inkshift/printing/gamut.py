@@ -64,6 +64,8 @@ __all__ = [
     "gamut_descriptor",
     "gamut_volume",
     "gamut_coverage",
+    "gamut_summary",
+    "GAMUT_CLASSES",
     "L_BIN",
     "HUE_BINS",
     "RAYS",
