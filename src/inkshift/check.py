@@ -30,7 +30,7 @@ from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile, read_profile
-from inkshift.proof import ColorProof, check_output_profile, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.proof import ColorProof, check_output_profile, ink_percent, lab_to_srgb8, proof_colors, srgb_profile
 from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE, gray_check, vision_check
 from inkshift.report.model import (
     CheckReport,
@@ -51,6 +51,8 @@ __all__ = [
     "open_output_profile",
     "write_check_outputs",
     "weighted_summary",
+    "image_source",
+    "composite_on_white",
     "pair_verdicts",
     "INK_NAMES",
     "OUTPUT_FILES",
@@ -95,7 +97,7 @@ def open_output_profile(spec: str | Path | Profile) -> tuple[Profile, ProfileInf
     return profile, info
 
 
-def _source_profile(chart: ChartImage, output: Profile) -> tuple[NDArray[np.uint8], Profile, str, bool, list[str]]:
+def image_source(chart: ChartImage, output: Profile) -> tuple[NDArray[np.uint8], Profile, str, bool, list[str]]:
     """Return the pixels to proof, the image's profile, its name, whether it was assumed, and notes.
 
     Without an embedded profile an RGB or gray image is taken as sRGB (gray
@@ -121,7 +123,7 @@ def _source_profile(chart: ChartImage, output: Profile) -> tuple[NDArray[np.uint
     return pixels, srgb_profile(), "sRGB IEC61966-2.1 (assumed)", True, notes
 
 
-def _composite(pixels: NDArray[np.uint8], alpha: NDArray[np.uint8] | None, space: str) -> tuple[NDArray[np.uint8], list[str]]:
+def composite_on_white(pixels: NDArray[np.uint8], alpha: NDArray[np.uint8] | None, space: str) -> tuple[NDArray[np.uint8], list[str]]:
     """Composite transparent areas onto white in the image's own space.
 
     White separates to bare paper, so on the print side transparent areas
@@ -191,10 +193,11 @@ def _palette_colors(
     thresholds: Thresholds,
 ) -> list[PaletteColor]:
     names = INK_NAMES[output.color_space]
+    inks = ink_percent(output, proof.device)
     screen_rgb = palette.colors if source is srgb_profile() else lab_to_srgb8(proof.screen_lab)
     out: list[PaletteColor] = []
     for k in range(len(palette.colors)):
-        ink = {n: float(v) * 100.0 / 255.0 for n, v in zip(names, proof.device[k])}
+        ink = {n: float(v) for n, v in zip(names, inks[k])}
         verdicts = []
         if proof.out_of_gamut[k]:
             verdicts.append("out of gamut")
@@ -265,8 +268,8 @@ def check(
         chart = image
     else:
         chart = load_chart(image, **({} if max_pixels is None else {"max_pixels": max_pixels}))
-    pixels, source, source_name, assumed, notes = _source_profile(chart, output)
-    pixels, composite_notes = _composite(pixels, chart.alpha, chart.space)
+    pixels, source, source_name, assumed, notes = image_source(chart, output)
+    pixels, composite_notes = composite_on_white(pixels, chart.alpha, chart.space)
 
     uniq = unique_colors(pixels)
     proof = proof_colors(

@@ -32,7 +32,7 @@ from inkshift.icc.evaluate import device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
 
-__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "PILLOW_MODES", "check_output_profile"]
+__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_percent", "PILLOW_MODES", "check_output_profile"]
 
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
@@ -80,6 +80,23 @@ def lab_to_srgb8(lab: NDArray[np.float64]) -> NDArray[np.uint8]:
     """Return 8-bit sRGB showing CIELAB (D50) colours, clipped to the sRGB gamut."""
     rgb = lab_to_device(srgb_profile(), lab, Intent.RELATIVE)
     return np.clip(np.rint(rgb * 255.0), 0, 255).astype(np.uint8)
+
+
+def ink_percent(profile: Profile, device: NDArray[np.uint8]) -> NDArray[np.float64]:
+    """Return ink amounts in percent for 8-bit device values of an output profile.
+
+    CMYK values are ink amounts by the ICC convention. Gray data has no fixed
+    polarity: a profile built from ink amounts (as the shipped ones are)
+    prints bare paper at 0, while many third-party gray profiles follow the
+    display convention (0 is black), so the profile's own A2B1 at both ends
+    decides. RGB output values are returned as percent of full scale.
+    """
+    percent = np.asarray(device, dtype=np.float64) * (100.0 / 255.0)
+    if profile.color_space == "GRAY":
+        ends = device_to_lab(profile, np.array([[0.0], [1.0]]), Intent.RELATIVE)[:, 0]
+        if ends[0] < ends[1]:
+            percent = 100.0 - percent
+    return percent
 
 
 def check_output_profile(profile: Profile) -> None:

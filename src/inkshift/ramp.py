@@ -612,15 +612,15 @@ def check_ramp_image(
     :func:`check_ramp`.
     """
     # The same source-profile and transparency rules as `check` (shared, not copied).
-    from inkshift.check import _composite, _source_profile
+    from inkshift.check import composite_on_white, image_source
 
     box = parse_strip(strip) if isinstance(strip, str) else tuple(int(v) for v in strip)
     if len(box) != 4:
         raise InputError(f"strip {strip!r}: give four whole numbers x0,y0,x1,y1")
     chart = load_chart(image)
     output, _ = open_output_profile(profile)
-    pixels, source, source_name, assumed, notes = _source_profile(chart, output)
-    pixels, composite_notes = _composite(pixels, chart.alpha, chart.space)
+    pixels, source, source_name, assumed, notes = image_source(chart, output)
+    pixels, composite_notes = composite_on_white(pixels, chart.alpha, chart.space)
     name = chart.path or "image"
     colors = sample_strip(pixels, box, steps, name)  # type: ignore[arg-type]
     x0, y0, x1, y1 = box

@@ -35,10 +35,9 @@ from numpy.typing import NDArray
 from inkshift.color.difference import delta_e_2000
 from inkshift.color.vision import simulate_cvd_lab
 from inkshift.errors import InputError, ProfileError
-from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import proof_colors
+from inkshift.proof import ink_percent, proof_colors
 from inkshift.report.console import format_pairs
 from inkshift.report.model import PairVerdict
 from inkshift.thresholds import Thresholds
@@ -247,7 +246,7 @@ def gray_check(
     proof = proof_colors(colors, source, gray, intent, bpc, out_of_gamut_delta_e=thresholds.out_of_gamut)
     screen_l = proof.screen_lab[:, 0]
     gray_l = proof.print_lab[:, 0]
-    ink = _gray_ink_percent(gray, proof.device[:, 0])
+    ink = ink_percent(gray, proof.device)[:, 0]
     merges = {
         "gray_print": _lightness_pairs(labels, proof.screen_lab, gray_l, thresholds.distinct, min_delta_l),
         "lightness": _lightness_pairs(labels, proof.screen_lab, screen_l, thresholds.distinct, min_delta_l),
@@ -262,19 +261,6 @@ def gray_check(
         distinct=thresholds.distinct,
         min_delta_l=min_delta_l,
     )
-
-
-def _gray_ink_percent(profile: Profile, device: NDArray[np.uint8]) -> NDArray[np.float64]:
-    """Return black ink (percent) for 8-bit device values of a GRAY output profile.
-
-    ICC gray data has no fixed polarity: a profile built from ink amounts
-    (as the shipped ones are) prints paper at 0, while many third-party gray
-    profiles follow the display convention (0 is black). The profile's own
-    A2B1 at both ends decides.
-    """
-    ends = device_to_lab(profile, np.array([[0.0], [1.0]]), Intent.RELATIVE)[:, 0]
-    percent = device.astype(np.float64) * 100.0 / 255.0
-    return percent if ends[0] >= ends[1] else 100.0 - percent
 
 
 def _lightness_pairs(
@@ -383,7 +369,7 @@ def format_gray(result: GrayResult) -> list[str]:
         pairs = result.merges[key]
         if not pairs:
             continue
-        where = f"on {result.gray_profile}" if key == "gray_print" else "by screen L* alone"
+        where = f"on {result.gray_profile}" if key == "gray_print" else "of the screen colours"
         lines.append(
             f"Merge in black and white, {word} {where} "
             f"(distinct on screen, ΔE00 >= {result.distinct:g}; under {result.min_delta_l:g} L* apart)"
