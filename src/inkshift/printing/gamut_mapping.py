@@ -7,11 +7,14 @@ Gamut boundary descriptor
 -------------------------
 The largest chroma C*ab found in each (L*, hue) bin (1 L* unit by 2° of hue),
 from dense, deterministic sampling of a surface: for a print condition the
-image of the boundary of the ink-limited device space (every 3-D face of the
-CMYK box where one ink is 0 or 100 %, and the ink-limit face); for sRGB the
-faces of the RGB cube. Empty bins inside a hue's lightness range are filled
-along L*; bins outside it mean "no colour here". Between bin centres the
-maximum chroma is interpolated bilinearly. This assumes that every line of
+image of the boundary of the ink-limited device space (densely its 2-D faces,
+where two inks are each 0 or 100 % or one is and the ink limit is reached;
+more coarsely its 3-D faces; steps closer together near 0 % where colour moves
+fastest); for sRGB the faces of the RGB cube. Empty bins inside a hue's
+lightness range are filled along L*, a bin lower than both neighbours (a
+sampling gap) is raised to their mean, and the neutral axis from the darkest
+neutral up to the paper counts as inside; bins outside mean "no colour here".
+Between bin centres the maximum chroma is interpolated bilinearly. This assumes that every line of
 constant L* and hue crosses the gamut in one segment starting at the neutral
 axis, which holds for printer and display gamuts away from their black and
 white ends.
@@ -19,12 +22,14 @@ white ends.
 Rendering intents
 -----------------
 relative colorimetric (B2A1)
-    A colour the print can reproduce is kept. Any other is replaced by the
-    point of the gamut boundary, in the plane of its own hue, with the
-    smallest CIEDE2000 to it (a hue-preserving minimum-ΔE00 clip).
+    A colour the print can reproduce is kept (the inverse decides, see
+    :func:`inkshift.printing.tables.relative_colorimetric`). Any other is
+    replaced by the point of the gamut boundary, in the plane of its own hue,
+    with the smallest CIEDE2000 to it (a hue-preserving minimum-ΔE00 clip,
+    :func:`clip_to_gamut`).
 absolute colorimetric
     Served by B2A1: the CMM turns ICC-absolute PCS values into media-relative
-    ones with the media white point before it uses the table (ICC.1, 6.3.2).
+    ones with the media white point before it uses the table (ICC.1).
 perceptual (B2A0)
     Lightness is first scaled linearly from the PCS range (L* 0..100) to the
     print's (L* of the darkest neutral the print reproduces .. 100), so PCS
@@ -32,8 +37,9 @@ perceptual (B2A0)
     CMMs does; a darker but coloured ink stack is not used as "black"). Then,
     in the plane of the colour's own hue, the colour is moved along the line
     from a focal point on the neutral axis at the lightness of the print's
-    cusp (its most chromatic colour of that hue) through the colour, as in
-    the cusp-oriented compression of CIE 156:2004 (SGCK). Along that line the
+    cusp (its most chromatic colour of that hue) through the colour, like the
+    cusp-oriented compression of SGCK, the reference algorithm of CIE
+    156:2004 (without its chroma-dependent sigmoidal lightness step). Along that line the
     source gamut (sRGB, the colour space of nearly every chart, after the
     same lightness scaling) is compressed onto the print gamut with a smooth
     knee: distances up to :data:`KNEE` times the print boundary's are kept,
