@@ -16,8 +16,15 @@ key array in place, so the extra memory is the 4-byte key per pixel (which
 becomes the returned ``inverse``) plus the two tables (16 MB + 64 MB for RGB).
 For 32-bit CMYK keys the two 16-bit halves are ranked separately by the same
 table method and combined into a dense key; only when that dense space is too
-large does it fall back to ``np.unique``'s sort. ``benchmarks/unique_colors.py``
-measures both routes.
+large does it fall back to ``np.unique``'s sort.
+
+Charts are mostly long runs of one colour along a row, so when there are at
+most a quarter as many runs as pixels, only the first key of each run is
+ranked and ``np.repeat`` spreads the ranks back; fewer than 2**16 keys are
+simply sorted. ``benchmarks/unique_colors.py`` compares this with
+``np.unique`` on 24 megapixels (measured on the shared 2-core machine: a chart
+0.37 s and 6.7 bytes per pixel against 5.8 s and 37 bytes per pixel; uniform
+noise, the worst case, 3.8 s and 15 bytes per pixel against 13 s).
 """
 
 from __future__ import annotations
