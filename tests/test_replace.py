@@ -245,3 +245,22 @@ def test_thresholds_feed_the_targets():
     rep = check(img, "coated", thresholds=Thresholds(merge=7.0), keep_maps=False)
     res = suggest_replacements(rep, gray_target=12.0, vision_target=6.0)
     assert res.targets == {"print_delta_e": 7.0, "gray_delta_l": 12.0, "vision_delta_e": 6.0}
+
+
+def test_cmyk_chart_gets_srgb_replacements():
+    # A CMYK chart without a profile is taken to be in the output profile's CMYK;
+    # the replacements are sRGB and the note says so.
+    c = np.zeros((40, 60, 4), np.uint8)
+    c[5:35, 5:25] = (255, 0, 0, 0)
+    c[5:35, 30:55] = (0, 255, 255, 0)
+    res = replace_colors(Image.fromarray(c, "CMYK"), "coated")
+    assert any("not in sRGB" in n for n in res.notes)
+    assert all(c.in_gamut for c in res.colors)
+    assert recolor_chart(res).shape == (40, 60, 3)
+
+
+def test_single_colour_has_no_pairs():
+    res = replace_colors(np.full((20, 20, 3), (0, 0, 255), np.uint8), "coated", lock_background=False)
+    (only,) = res.colors
+    assert only.changed and only.in_gamut  # pure blue is out of gamut on coated
+    assert res.before.print_delta_e is None and res.after.to_dict()["min_print_delta_e"] is None
