@@ -90,6 +90,16 @@ class Canvas:
             fill=fill, outline=outline, width=round(width * s),
         )
 
+    def rule(self, x0: float, y0: float, x1: float, y1: float, fill, width: int) -> None:
+        """A horizontal or vertical rule snapped to whole final pixels (crisp, as
+        chart renderers draw axes and gridlines)."""
+        if y0 == y1:
+            top = round(y0 - width / 2)
+            self.rect(round(x0), top, round(x1), top + width, fill)
+        else:
+            left = round(x0 - width / 2)
+            self.rect(left, round(y0), left + width, round(y1), fill)
+
     def line(self, points, fill, width: float) -> None:
         self.draw.line([(x * SCALE, y * SCALE) for x, y in points], fill=fill, width=round(width * SCALE))
 
@@ -112,7 +122,7 @@ def _value_axis(cv: Canvas, x0: float, y0: float, x1: float, y1: float, top: flo
     v = 0.0
     while v <= top + 1e-9:
         y = y1 - (y1 - y0) * v / top
-        cv.line([(x0, y), (x1, y)], GRID if v else INK, 1.0)
+        cv.rule(x0, y, x1, y, GRID if v else INK, 1)
         cv.text(x0 - 6, y, f"{v:g}", 10, anchor="rm")
         v += step
     cv.text(x0 - 46, (y0 + y1) / 2, label, 11, anchor="mm")
@@ -136,8 +146,8 @@ def draw_ridership() -> Path:
             cv.rect(bx + 1.5, by, bx + bar_w - 1.5, y1, color)
             cv.text(bx + bar_w / 2, by - 4, str(value), 9, anchor="md")
         cv.text(x0 + (q + 0.5) * group_w, y1 + 14, quarter, 11, anchor="mm")
-    cv.line([(x0, y1), (x1, y1)], INK, 1.5)
-    cv.line([(x0, y0), (x0, y1)], INK, 1.5)
+    cv.rule(x0, y1, x1, y1, INK, 2)
+    cv.rule(x0, y0, x0, y1, INK, 2)
     # Legend: swatches and route names.
     lx, ly = 120.0, 740.0
     for r, (name, color) in enumerate(zip(ROUTES, ROUTE_COLORS)):
@@ -187,7 +197,7 @@ def draw_delays() -> Path:
         cv.rect(lx0 + i, ly0, lx0 + i + 1, ly1, hue_sweep(i / (n - 1)))
     for v in range(0, 31, 5):
         x = lx0 + (lx1 - lx0) * v / top
-        cv.line([(x, ly1), (x, ly1 + 5)], INK, 1.0)
+        cv.rule(x, ly1, x, ly1 + 5, INK, 1)
         cv.text(x, ly1 + 8, f"{v}", 10, anchor="ma")
     cv.text(lx0 - 10, (ly0 + ly1) / 2, "Delay (min)", 11, anchor="rm")
     return cv.save("crossing_delays.png")
@@ -239,7 +249,7 @@ def draw_fare_mix() -> Path:
         cv.rect(bx0, y1 + 30, bx1, y1 + 56, _diverging(change))
         fill = PAPER if abs(change) >= 10 else INK
         cv.text((bx0 + bx1) / 2, y1 + 43, f"{change:+d}%", 10, fill=fill, anchor="mm")
-    cv.line([(x0, y1), (x1, y1)], INK, 1.5)
+    cv.rule(x0, y1, x1, y1, INK, 2)
     # Sequential legend.
     lx, ly = 760.0, 130.0
     cv.text(lx, ly - 24, "Ticket type", 12)

@@ -220,3 +220,29 @@ def test_unexplained_colours_are_labelled_other():
     u = unique_colors(img)
     i = int(np.flatnonzero((u.colors == (255, 0, 0)).all(axis=1))[0])
     assert len(pal) == 2 and pal.labels[i] == OTHER and (pal.parents[i] == -1).all()
+
+
+def _sample_module():
+    import importlib.util
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parent.parent / "samples" / "draw_samples.py"
+    spec = importlib.util.spec_from_file_location("draw_samples", path)
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+@pytest.mark.parametrize("name", ["ferry_ridership.png", "fare_mix.png"])
+def test_shipped_samples_give_exactly_their_drawn_colours(name):
+    # The sample PNGs are drawn by samples/draw_samples.py from known colours;
+    # the palette must be exactly those that appear, with no blend among them.
+    ds = _sample_module()
+    pixels = np.asarray(Image.open(ds.OUT / name).convert("RGB"))
+    if name == "ferry_ridership.png":
+        drawn = {ds.PAPER, ds.INK, ds.GRID, *ds.ROUTE_COLORS}
+    else:
+        drawn = {ds.PAPER, ds.INK, ds.GRID, *ds.SEQUENTIAL, *ds.DIVERGING}
+    pal = extract_palette(pixels, srgb_to_lab)
+    assert {tuple(int(v) for v in c) for c in pal.colors} == drawn
+    assert tuple(pal.colors[pal.is_background][0]) == ds.PAPER

@@ -47,9 +47,10 @@ Method (the project's own; the reasoning is given for each step)
    noise radius of a better-founded one are merged into it (fill before line
    before stroke).
 
-4. **Noise and blends among thin marks** (:func:`_drop_blends`). A line or
-   stroke close to a fill (twice the noise radius) is that fill's noise. A
-   stroke that lies on the straight segment between two other palette
+4. **Noise and blends among thin marks** (:func:`_drop_blends`). A line
+   close to a fill (:data:`LINE_NOISE_CODES`), or a stroke close to a fill, a
+   line or a stronger stroke (twice the noise radius), is that colour's
+   noise. A stroke that lies on the straight segment between two other palette
    colours, in encoded values or in linear light, within
    :data:`BLEND_TOLERANCE` codes and strictly inside the segment
    (:data:`BLEND_MIN_FRACTION`), is a blend. This is the rule for small
@@ -105,6 +106,7 @@ __all__ = [
     "LINE_RUN",
     "RUN_TOLERANCE",
     "MIN_LINE_PIXELS",
+    "LINE_NOISE_CODES",
     "GRADIENT_REACH",
     "GRADIENT_STEP",
     "GRADIENT_SHARE",
@@ -165,6 +167,13 @@ RUN_TOLERANCE = 12
 """Codes (any channel) within which neighbours continue a run: twice
 :data:`FLAT_TOLERANCE`, because JPEG noise along a thin line is stronger than
 inside a fill (chosen by this project)."""
+
+LINE_NOISE_CODES = 12
+"""Codes (largest channel) within which a line candidate is a fill's compression
+ringing rather than a drawn line: beside the one-pixel gridlines of the samples
+saved as JPEG quality 85 the ringing reaches 9-11 codes, while a drawn light
+gridline lies 16 codes from the palest fill of the fare-mix sample (measured by
+this project)."""
 
 MIN_LINE_PIXELS = 48
 """Line pixels a line colour needs: two runs of :data:`LINE_RUN` (chosen by this project)."""
@@ -674,13 +683,14 @@ def _drop_blends(
 ) -> tuple[NDArray[np.uint8], NDArray[np.str_]]:
     """Drop line and stroke candidates that are noise around, or blends of, other colours.
 
-    Strongest first, a line candidate within twice :data:`NOISE_CODES` of a
+    Strongest first, a line candidate within :data:`LINE_NOISE_CODES` of a
     fill, and a stroke candidate within twice the noise radius (codes or
-    ΔE00) of a fill, a line or a stronger stroke colour, is taken as that
-    colour: thin marks are never free of blending or of compression ringing,
-    so their colour is known less precisely than a fill's. (Lines are held to
-    the code radius.) Then, weakest first, a stroke candidate that lies between two
-    other palette colours (see :func:`_best_pair`) is a blend.
+    ΔE00) of a fill, a line or a stronger stroke, is taken as that colour:
+    thin marks are never free of blending or of compression ringing, so their
+    colour is known less precisely than a fill's. Then, weakest first, a
+    stroke candidate that lies between two other palette colours (see
+    :func:`_best_pair`) is a blend. Lines are never taken for blends: their
+    long straight runs are evidence enough.
     """
     keep = np.ones(colors.shape[0], bool)
     plab = np.asarray(lab(colors), np.float64)
@@ -697,9 +707,10 @@ def _drop_blends(
         if ref.size == 0:
             continue
         codes = np.abs(colors[ref].astype(np.int16) - colors[i].astype(np.int16)).max(axis=1)
-        near = codes <= 2 * NOISE_CODES
-        if kinds[i] == "stroke":
-            near |= delta_e_2000(plab[ref], plab[i]) <= 2 * NOISE_DELTA_E
+        if kinds[i] == "line":
+            near = codes <= LINE_NOISE_CODES
+        else:
+            near = (codes <= 2 * NOISE_CODES) | (delta_e_2000(plab[ref], plab[i]) <= 2 * NOISE_DELTA_E)
         if np.any(near):
             keep[i] = False
     for i in np.argsort(strength, kind="stable"):
