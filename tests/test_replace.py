@@ -264,3 +264,19 @@ def test_single_colour_has_no_pairs():
     (only,) = res.colors
     assert only.changed and only.in_gamut  # pure blue is out of gamut on coated
     assert res.before.print_delta_e is None and res.after.to_dict()["min_print_delta_e"] is None
+
+
+def test_fare_mix_is_never_worse_and_printable():
+    # The second shipped sample: 15 colours, where the gray target cannot be met.
+    res = replace_colors(SAMPLES / "fare_mix.png", "coated")
+    b, a = res.before, res.after
+    assert a.print_delta_e >= b.print_delta_e
+    assert a.gray_delta_l >= b.gray_delta_l
+    assert a.vision_delta_e >= b.vision_delta_e
+    assert all(c.in_gamut and c.replacement_shift <= Thresholds().shift for c in res.colors if c.changed)
+    # No pair, distinct on screen or not, comes closer in print than it was (or the merge target).
+    orig = np.array([c.original_print_lab for c in res.colors])
+    new = np.array([c.replacement_print_lab for c in res.colors])
+    i, j = np.triu_indices(len(orig), 1)
+    floor = np.minimum(_reference_de00(orig[i], orig[j]), Thresholds().merge)
+    assert np.all(_reference_de00(new[i], new[j]) >= floor - 1e-6)

@@ -19,8 +19,10 @@ Method (the project's own; the reasoning is given for each step)
    intent, black point compensation and view as the check) and on the
    grayscale profile; only candidates in gamut by the check's own rule (the
    relative colorimetric round trip misses by at most
-   ``thresholds.out_of_gamut`` ΔE00) are kept. A replacement is therefore
-   always a screen hex whose proofed print is the one reported.
+   ``thresholds.out_of_gamut`` ΔE00) that do not shift either (screen to
+   print ΔE00 at most ``thresholds.shift``) are kept, so a check of the
+   recoloured chart flags none of the new colours. A replacement is
+   therefore always a screen hex whose proofed print is the one reported.
 2. **Pairs that matter.** Only pairs of palette colours clearly distinct on
    screen (ΔE00 >= ``thresholds.distinct``, the check's merge rule) are
    separated; the background is a palette colour, so its pairs with marks
@@ -647,7 +649,7 @@ def suggest_replacements(
     grid = np.concatenate([candidate_grid(grid_levels), start_rgb])
     grid = np.unique(grid, axis=0)
     cand = proof_colors(grid, srgb_profile(), output, intent, report.bpc, report.paper, out_of_gamut_delta_e=t.out_of_gamut)
-    keep = ~cand.out_of_gamut
+    keep = ~cand.out_of_gamut & (cand.delta_e <= t.shift)
     grid = grid[keep]
     cand_gray = proof_colors(grid, srgb_profile(), gray, intent, report.bpc).print_lab[:, 0]
     orig_rgb = np.array([hex_rgb(h) for h in hexes], np.uint8).reshape(k, 3)
@@ -743,8 +745,8 @@ def suggest_replacements(
     ]
     if unmet:
         notes.append(
-            f"Not every target is met ({', '.join(unmet)}): {k} colours leave too little room on this profile; "
-            "fewer colours, direct labels or patterns would help."
+            f"Not every target is met ({', '.join(unmet)}): {k} colours, {int(locked.sum())} of them locked, leave "
+            "too little room on this profile; fewer colours, direct labels or patterns would help."
         )
     if not considered.any():
         notes.append(f"No two chart colours are {t.distinct:g} ΔE00 or more apart on screen; nothing to separate.")
