@@ -280,3 +280,32 @@ def test_fare_mix_is_never_worse_and_printable():
     i, j = np.triu_indices(len(orig), 1)
     floor = np.minimum(_reference_de00(orig[i], orig[j]), Thresholds().merge)
     assert np.all(_reference_de00(new[i], new[j]) >= floor - 1e-6)
+
+
+def test_checking_the_recoloured_chart_flags_no_new_colour(ferry):
+    # End to end: the preview, checked again on the same profile, finds every
+    # replacement among its palette colours, none out of gamut, shifting or merging.
+    rep = check(recolor_chart(ferry), "coated", keep_maps=False)
+    found = {c.hex: c for c in rep.colors}
+    new = {c.replacement_hex for c in ferry.colors if c.changed}
+    assert new and new <= set(found)
+    for h in new:
+        assert found[h].verdicts == (), (h, found[h].verdicts)
+
+
+def test_cli_writes_outputs_and_prints_json(monkeypatch, capsys, tmp_path):
+    img = np.full((60, 100, 3), 255, np.uint8)
+    img[10:50, 10:40] = (0, 0, 255)
+    img[10:50, 60:90] = (40, 60, 255)
+    src = tmp_path / "bars.png"
+    Image.fromarray(img).save(src)
+    out = tmp_path / "out"
+    code = _main(monkeypatch, "replace", str(src), "--json", "--out", str(out), "--lock", "#2838FF")
+    captured = capsys.readouterr()
+    assert code in (0, None), captured.err
+    data = json.loads(captured.out)
+    assert data["schema"] == REPLACE_SCHEMA
+    by_hex = {c["original"]: c for c in data["colors"]}
+    assert by_hex["#283cff"]["locked"] and by_hex["#283cff"]["replacement"] == "#283cff"
+    assert by_hex["#0000ff"]["changed"] and by_hex["#0000ff"]["replacement_in_gamut"]
+    assert sorted(p.name for p in out.iterdir()) == sorted(OUTPUT_FILES.values())
