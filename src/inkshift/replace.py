@@ -172,7 +172,8 @@ difference (common practice), so colours do not drift for nothing."""
 
 MAX_MOVES = 12
 """Upper bound on moves per movable colour in one pass; the sample charts need
-one or two (measured)."""
+one to three (measured on coated: 4, 13 and 36 moves for 4, 9 and 16 colours
+changed)."""
 
 _FIGURES = ("print", "gray", "vision")
 
