@@ -22,7 +22,7 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage, load_chart
 from inkshift.chart.palette import Palette, extract_palette
-from inkshift.chart.unique import UniqueColors, expand, unique_colors
+from inkshift.chart.unique import expand, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
 from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
@@ -354,6 +354,7 @@ def check(
         unique=uniq,
         proof=proof,
         source_profile=source,
+        output=output,
         palette=palette,
     )
 

@@ -29,7 +29,6 @@ from inkshift.errors import InputError
 from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
 from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.intent import Intent, parse_intent
-from inkshift.icc.read import read_profile
 from inkshift.printing.gamut import gamut_coverage, gamut_volume
 from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.shipped import resolve_profile
@@ -207,7 +206,6 @@ def compare(
             chart, spec, intent, bpc=bpc, paper=paper, thresholds=thresholds, keep_maps=False,
             gray_profile=gray_profile, gray_delta_l=gray_delta_l, vision_severity=vision_severity,
         )
-        out_profile = read_profile(rep.output_profile.path)
         outcomes.append(
             ProfileOutcome(
                 name=rep.output_profile.name,
@@ -219,8 +217,8 @@ def compare(
                 out_of_gamut_share=rep.summary.out_of_gamut_share,
                 merge_count=len(rep.merges),
                 palette_delta_e_mean=_palette_mean(rep),
-                gamut_volume=gamut_volume(out_profile),
-                source_coverage=gamut_coverage(out_profile, rep.source_profile),
+                gamut_volume=gamut_volume(rep.output),
+                source_coverage=gamut_coverage(rep.output, rep.source_profile),
                 check=rep,
             )
         )

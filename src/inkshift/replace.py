@@ -633,7 +633,7 @@ def suggest_replacements(
     locked = user_locked | (np.asarray(palette.is_background, bool) if lock_background else False)
 
     intent = parse_intent(report.intent)
-    output, _ = open_output_profile(report.output_profile.path)
+    output = report.output
     gray, gray_info = open_output_profile(gray_profile)
     if gray.color_space != "GRAY":
         raise ProfileError(gray.source, f"is a {gray.color_space} profile; the black-and-white figure needs a grayscale output profile")

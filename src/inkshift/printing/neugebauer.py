@@ -321,7 +321,6 @@ def device_to_lab_jacobian(
         (exact derivative of the model, including the tone value curve; one-sided at 0 and 1).
     """
     d = np.asarray(device, dtype=np.float64)
-    k = model.n_inks
     a, da_dt = effective_coverage(model, d)
     q, s = _ynsn_sum(model, a)
     scale = model.relative_scale if relative else np.ones(3)

@@ -175,6 +175,8 @@ class CheckReport:
     """Per-unique-colour results (:class:`inkshift.proof.ColorProof`)."""
     source_profile: Any = field(default=None, repr=False)
     """The image's profile as used (:class:`inkshift.icc.read.Profile`)."""
+    output: Any = field(default=None, repr=False)
+    """The output profile as used (:class:`inkshift.icc.read.Profile`)."""
     palette: Any = field(default=None, repr=False)
     """The chart's palette (:class:`inkshift.chart.palette.Palette`), same order as ``colors``."""
 
