@@ -97,6 +97,7 @@ __all__ = [
     "extract_palette",
     "BLEND",
     "OTHER",
+    "MAX_COLORS",
     "FLAT_TOLERANCE",
     "NOISE_DELTA_E",
     "NOISE_CODES",
@@ -115,6 +116,12 @@ __all__ = [
     "BLEND_TOLERANCE",
     "BLEND_MIN_FRACTION",
 ]
+
+MAX_COLORS = 64
+"""Most colours each stage (fills, lines, strokes) reports, strongest first.
+Chosen by this project: categorical chart palettes stay near a dozen colours
+(common practice) and even a stepped heat-map scale rarely needs more than a
+few dozen; beyond that the image is not read by its colours (a photograph)."""
 
 BLEND = -1
 """Label of a colour explained as a blend of two palette colours."""
@@ -208,10 +215,14 @@ BLEND_MIN_FRACTION = 0.04
 """Smallest mixing fraction of a blend; closer to a parent it is that parent's
 noise (chosen by this project: 4 % of a full black-white step is 10 codes)."""
 
+_MAX_GROUP_STEPS = 16 * 64  # seeds tried per grouping stage before giving up
+_MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in grouping
+_DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
 _REFINE_STEPS = 4  # median-shift steps when re-centring a group's colour
-_PARENTS = 16  # nearest palette colours (Euclidean, codes) among which a blend's parents are sought
+_ALL_PAIRS_UP_TO = 16  # palettes up to this size: every pair is tried as a blend's parents
+_PARENTS = 8  # larger palettes: pairs among this many nearest colours (Euclidean, codes)
 
 
 _Group = tuple[NDArray[np.uint8], int, NDArray[np.bool_]]  # (colour, evidence, member mask)
@@ -566,27 +577,35 @@ def _group(
 
     The loop runs once per group (not per colour); groups below ``minimum`` are
     consumed without being kept, and the loop stops when the evidence left in
-    all free colours together is below ``minimum``.
+    all free colours together is below ``minimum``, after :data:`MAX_COLORS`
+    groups, or after ``_MAX_GROUP_STEPS`` seeds (a photograph, not a chart).
+    Only the ``_MAX_GROUP_COLORS`` colours with the most evidence take part,
+    which bounds the work on images with a million colours; a chart's
+    evidence sits in far fewer.
     """
-    free = free & (evidence > 0)
-    out = []
-    ev = evidence.astype(np.int64)
-    while True:
-        left = np.flatnonzero(free)
-        if left.size == 0 or int(ev[left].sum()) < minimum:
+    n = colors.shape[0]
+    pool = np.flatnonzero(free & (evidence > 0))
+    if pool.size > _MAX_GROUP_COLORS:
+        pool = pool[np.argpartition(-evidence[pool], _MAX_GROUP_COLORS)[:_MAX_GROUP_COLORS]]
+    cols, labs, ev = colors[pool], ulab[pool], evidence[pool].astype(np.int64)
+    open_ = np.ones(pool.size, bool)
+    out: list[_Group] = []
+    for _ in range(_MAX_GROUP_STEPS):
+        left = np.flatnonzero(open_)
+        if left.size == 0 or int(ev[left].sum()) < minimum or len(out) >= MAX_COLORS:
             break
         seed = left[np.argmax(ev[left])]
-        members_idx = left[_same(colors[left], ulab[left], colors[seed], ulab[seed])]
-        free[members_idx] = False
+        members_idx = left[_same(cols[left], labs[left], cols[seed], labs[seed])]
+        open_[members_idx] = False
         total = int(ev[members_idx].sum())
         if total < minimum:
             continue
-        members = np.zeros(colors.shape[0], bool)
-        members[members_idx] = True
+        members = np.zeros(n, bool)
+        members[pool[members_idx]] = True
         # Re-centre among the colours no stronger group has claimed.
-        claimable = free.copy()
+        claimable = open_.copy()
         claimable[members_idx] = True
-        rep = _refine(colors, np.where(claimable, ev, 0), _weighted_median(colors[members_idx], ev[members_idx]))
+        rep = _refine(cols, np.where(claimable, ev, 0), _weighted_median(cols[members_idx], ev[members_idx]))
         out.append((rep, total, members))
     return out
 
@@ -598,7 +617,11 @@ def _refine(colors: NDArray[np.uint8], ev: NDArray[np.int64], rep: NDArray[np.ui
     one draw from the noise cloud; the median of the whole cloud is the drawn
     colour (a few steps of a median shift, at most ``_REFINE_STEPS``).
     """
-    has = ev > 0
+    # Colours that any step could reach: within REFINE_CODES of every step's
+    # centre, and the centre moves by at most REFINE_CODES per step.
+    reach = (_REFINE_STEPS + 1) * REFINE_CODES
+    has = np.flatnonzero(ev > 0)
+    has = has[np.abs(colors[has].astype(np.int16) - rep.astype(np.int16)).max(axis=1) <= reach]
     cols = colors[has].astype(np.int16)
     w = ev[has]
     for _ in range(_REFINE_STEPS):
@@ -617,7 +640,12 @@ def _same(
 ) -> NDArray[np.bool_]:
     """True where ``colors`` are within the noise radius of ``color`` (codes or ΔE00)."""
     codes = np.abs(colors.astype(np.int16) - color.astype(np.int16)).max(axis=1)
-    return (codes <= NOISE_CODES) | (delta_e_2000(lab, lab1) <= NOISE_DELTA_E)
+    out = codes <= NOISE_CODES
+    # ΔE00 only where it can matter: within 1 ΔE00 of each other, two 8-bit
+    # sRGB colours are never more than about 30 codes apart.
+    maybe = np.flatnonzero(~out & (codes <= _DE_PREFILTER_CODES))
+    out[maybe] = delta_e_2000(lab[maybe], lab1) <= NOISE_DELTA_E
+    return out
 
 
 def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> NDArray[np.uint8]:
@@ -732,14 +760,15 @@ def _linear(codes: NDArray[np.float64]) -> NDArray[np.float64]:
 
 
 def _best_pair(
-    x: NDArray[np.uint8], p: NDArray[np.uint8], nearest_only: bool = True
+    x: NDArray[np.uint8], p: NDArray[np.uint8], nearest_only: bool = True, linear: bool = True
 ) -> tuple[NDArray[np.int64], NDArray[np.float64], NDArray[np.float64]]:
     """Best two-colour blend explanation of each colour in ``x`` by the colours ``p``.
 
-    All pairs are tried when the palette has at most ``_PARENTS`` colours
-    (nearly every chart); beyond that only pairs among the ``_PARENTS``
-    palette colours nearest to each colour (Euclidean, encoded values), which
-    keeps the work linear in the palette size.
+    All pairs are tried when the palette has at most ``_ALL_PAIRS_UP_TO``
+    colours (nearly every chart); beyond that only pairs among the
+    ``_PARENTS`` palette colours nearest to each colour (Euclidean, encoded
+    values), which keeps the work linear in the palette size. ``linear=False``
+    skips the linear-light test.
 
     Returns (pair (M, 2) indices into p, fraction of the first parent in
     encoded values, residual in codes). The residual is the smaller of the
@@ -754,10 +783,10 @@ def _best_pair(
     resid = np.full(m, np.inf)
     if k < 2 or m == 0:
         return pair, frac, resid
-    near = min(k, _PARENTS) if nearest_only else k
+    near = (k if k <= _ALL_PAIRS_UP_TO else min(k, _PARENTS)) if nearest_only else k
     j0, j1 = np.triu_indices(near, 1)
     pf = p.astype(np.float64)
-    pl = _linear(pf) if p.shape[1] in (1, 3) else None
+    pl = _linear(pf) if linear and p.shape[1] in (1, 3) else None
     for s in range(0, m, _CHUNK):
         xs = x[s : s + _CHUNK].astype(np.float64)
         rows = np.arange(xs.shape[0])[:, None]
@@ -819,7 +848,10 @@ def _label(
     mix = np.full(n, np.nan)
     rest = np.flatnonzero(labels == OTHER)
     if rest.size:
-        pair, frac, resid = _best_pair(ucolors[rest], colors)
+        # Encoded values only here: renderers blend anti-aliased edges in
+        # encoded sRGB, and halving the work matters for images with a
+        # million colours. Candidates (step 4) are also tested in linear light.
+        pair, frac, resid = _best_pair(ucolors[rest], colors, linear=False)
         is_blend = resid <= BLEND_TOLERANCE
         hit = rest[is_blend]
         labels[hit] = BLEND
