@@ -794,7 +794,7 @@ def _best_pair(
             nearest = np.broadcast_to(np.arange(k), (xs.shape[0], k))
         else:
             dist = np.einsum("mkc,mkc->mk", xs[:, None, :] - pf[None], xs[:, None, :] - pf[None])
-            nearest = np.argsort(dist, axis=1, kind="stable")[:, :near]
+            nearest = np.argpartition(dist, near - 1, axis=1)[:, :near]
         ia, ib = nearest[:, j0], nearest[:, j1]  # (m, P) palette indices of each pair
         t_e, r = _segment(xs, pf[ia], pf[ib])
         if pl is not None:
