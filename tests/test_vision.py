@@ -252,3 +252,15 @@ def test_lab_to_gray_lab() -> None:
     np.testing.assert_array_equal(gray[..., 1:], 0.0)
     # Two colours of equal L* and different hue become one gray (ΔE00 = 0).
     assert delta_e_2000(lab_to_gray_lab([50.0, 60.0, 40.0]), lab_to_gray_lab([50.0, -20.0, 45.0])) == 0.0
+
+
+def test_shipped_table_equals_colour_science_copy() -> None:
+    # The project's copy of the published matrices (inkshift.color.machado2009)
+    # against colour-science's copy of the same supplementary table.
+    from inkshift.color.machado2009 import MACHADO2009_MATRICES
+
+    for family, stack in MACHADO2009_MATRICES.items():
+        table = CVD_MATRICES_MACHADO2010[family]
+        assert len(stack) == len(table) == 11
+        for severity, matrix in zip(sorted(table), stack):
+            np.testing.assert_array_equal(np.array(matrix), np.asarray(table[severity]))

@@ -32,7 +32,6 @@ inverse of the RGB -> XYZ matrix rather than the standard's rounded one.
 from __future__ import annotations
 
 import math
-import warnings
 from functools import lru_cache
 from typing import Final
 
@@ -40,6 +39,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from inkshift.color.convert import D50_XYZ, lab_to_xyz, xyz_to_lab
+from inkshift.color.machado2009 import MACHADO2009_MATRICES
 from inkshift.errors import InputError
 from inkshift.thresholds import MERGE_DELTA_E
 
@@ -83,15 +83,7 @@ _SEVERITY_STEPS: Final[int] = 10  # the published matrices are 0.1 apart
 @lru_cache(maxsize=None)
 def _published_table(key: str) -> NDArray[np.float64]:
     """The published matrices of one deficiency, stacked (11, 3, 3) by severity 0, 0.1, ..., 1."""
-    with warnings.catch_warnings():  # colour-science warns on import about optional plotting packages
-        warnings.simplefilter("ignore")
-        from colour.blindness import CVD_MATRICES_MACHADO2010
-
-    table = CVD_MATRICES_MACHADO2010[key]
-    grid = sorted(table)
-    if not np.allclose(grid, np.linspace(0.0, 1.0, _SEVERITY_STEPS + 1)):  # pragma: no cover - data guard
-        raise RuntimeError(f"unexpected severity grid for {key} in colour-science: {grid}")
-    stack = np.stack([np.asarray(table[s], dtype=np.float64) for s in grid])
+    stack = np.array(MACHADO2009_MATRICES[key], dtype=np.float64)
     stack.setflags(write=False)
     return stack
 
