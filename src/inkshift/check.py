@@ -75,6 +75,11 @@ OUTPUT_FILES: dict[str, str] = {
 
 _WHITE = {"RGB": 255, "GRAY": 255, "CMYK": 0}
 
+FULL_SIZE_PNG_LEVEL = 1
+"""zlib level of the full-resolution PNGs (heat map, simulated print). Measured on
+a 24-megapixel chart: level 1 writes in about half the time of Pillow's default
+6 for files about 50 % larger; flat chart areas compress well either way."""
+
 
 def open_output_profile(spec: str | Path | Profile) -> tuple[Profile, ProfileInfo]:
     """Return the output profile named by ``spec`` (short name, path or Profile) and its info."""
@@ -382,10 +387,12 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
     try:
         maps = report.maps
         img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
-        written.append(save_image_atomic(img, paths["heatmap"]))
+        written.append(save_image_atomic(img, paths["heatmap"], compress_level=FULL_SIZE_PNG_LEVEL))
         del img
         sim = Image.fromarray(maps.print_rgb, mode="RGB")
-        written.append(save_image_atomic(sim, paths["print"], icc_profile=srgb_profile_bytes()))
+        written.append(
+            save_image_atomic(sim, paths["print"], icc_profile=srgb_profile_bytes(), compress_level=FULL_SIZE_PNG_LEVEL)
+        )
         del sim
         swatches = [
             Swatch(
