@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 from PIL import Image
 
-from inkshift.chart.palette import BLEND
+from inkshift.chart.palette import BLEND, label_blends
 from inkshift.check import check, open_output_profile
 from inkshift.errors import InputError
 from inkshift.icc.cms import lab_profile, srgb_profile_bytes, transform_colors
@@ -132,7 +132,7 @@ def test_preview_carries_the_replacements(ferry):
         assert flat.sum() > 0
         assert np.all(preview[flat] == hex_rgb(c.replacement_hex)), c.original_hex
     # Pixels that are neither a replaced colour nor a blend of one stay as they were.
-    pal = ferry.check.palette
+    pal = label_blends(ferry.check.palette, ferry.check.unique.colors)
     changed = np.array([c.changed for c in ferry.colors])
     lab = pal.labels[ferry.check.unique.inverse].reshape(src.shape[:2])
     par = pal.parents[ferry.check.unique.inverse].reshape(*src.shape[:2], 2)
@@ -155,7 +155,7 @@ def test_blend_is_the_same_mix_of_the_replaced_parents():
     new = {c.original_hex: hex_rgb(c.replacement_hex).astype(float) for c in res.colors}
     blue = new["#0000ff"]
     assert not np.array_equal(blue, a)  # pure blue is out of gamut on coated
-    pal = rep.palette
+    pal = label_blends(rep.palette, rep.unique.colors)
     k = rep.unique.inverse.reshape(60, 100)[0, 40]
     assert pal.labels[k] == BLEND
     m = pal.mix[k]

@@ -285,7 +285,7 @@ def check(
     def screen_lab_of(colors: NDArray[np.uint8]) -> NDArray[np.float64]:
         return device_to_lab(source, np.asarray(colors) / 255.0, Intent.RELATIVE)
 
-    palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab)
+    palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab, blends=False)
     pal_proof = proof_colors(
         palette.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
     )

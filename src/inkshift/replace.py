@@ -97,7 +97,7 @@ from PIL import Image
 
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage
-from inkshift.chart.palette import BLEND, NOISE_DELTA_E
+from inkshift.chart.palette import BLEND, NOISE_DELTA_E, label_blends
 from inkshift.chart.unique import expand
 from inkshift.check import check, open_output_profile
 from inkshift.color.difference import delta_e_1976, delta_e_2000
@@ -812,7 +812,7 @@ def recolor_chart(result: ReplaceReport) -> NDArray[np.uint8]:
     rep = result.check
     if rep is None or rep.unique is None or rep.palette is None:
         raise InputError("the replacement report carries no check with unique colours; use replace_colors()")
-    uniq, palette = rep.unique, rep.palette
+    uniq, palette = rep.unique, label_blends(rep.palette, rep.unique.colors)
     if rep.source_profile is srgb_profile():
         u_rgb = uniq.colors.astype(np.float64)
     else:

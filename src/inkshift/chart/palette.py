@@ -83,7 +83,7 @@ colours.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Callable
 
 import numpy as np
@@ -95,6 +95,7 @@ from inkshift.color.difference import delta_e_1976, delta_e_2000
 __all__ = [
     "Palette",
     "extract_palette",
+    "label_blends",
     "BLEND",
     "OTHER",
     "MAX_COLORS",
@@ -277,6 +278,7 @@ def extract_palette(
     alpha: ArrayLike | None = None,
     unique: UniqueColors | None = None,
     unique_lab: ArrayLike | None = None,
+    blends: bool = True,
 ) -> Palette:
     """Return the colours a chart was drawn with (see the module docstring).
 
@@ -293,6 +295,11 @@ def extract_palette(
         The image's :class:`~inkshift.chart.unique.UniqueColors`, if already computed.
     unique_lab
         ``lab(unique.colors)``, if already computed.
+    blends
+        Also find the two parents and the mix of every blend
+        (:func:`label_blends`). Counts and shares do not depend on it; on a
+        photograph with millions of colours it is most of the work, so
+        callers that only need the palette pass False.
 
     Returns
     -------
@@ -377,7 +384,7 @@ def extract_palette(
 
     # Step 5: labels for every unique colour, then counts and shares.
     plab = np.asarray(lab(colors), dtype=np.float64)
-    labels, parents, mix = _label(u.colors, ulab, colors, plab)
+    labels = _noise_labels(u.colors, ulab, colors, plab)
     k = colors.shape[0]
     sel = labels >= 0
     counts = np.bincount(labels[sel], weights=totals[sel], minlength=k).astype(np.int64)
@@ -385,14 +392,13 @@ def extract_palette(
     remap = np.empty(k, np.int64)
     remap[order] = np.arange(k)
     labels = np.where(labels >= 0, remap[np.maximum(labels, 0)], labels)
-    parents = np.where(parents >= 0, remap[np.maximum(parents, 0)], -1)
     colors, plab, counts, kinds = colors[order], plab[order], counts[order], kinds[order]
     total = int(totals.sum())
     shares = counts / total if total else np.zeros(k)
     is_background = np.zeros(k, bool)
     if k:
         is_background[0] = True
-    return Palette(
+    palette = Palette(
         colors=colors,
         lab=plab,
         counts=counts,
@@ -400,9 +406,10 @@ def extract_palette(
         is_background=is_background,
         kind=kinds,
         labels=labels,
-        parents=parents,
-        mix=mix,
+        parents=np.full((labels.size, 2), -1, np.int64),
+        mix=np.full(labels.size, np.nan),
     )
+    return label_blends(palette, u.colors) if blends else palette
 
 
 def _evidence_counts(
@@ -828,11 +835,10 @@ def _segment(
     return t, np.where(denom > 0, r, np.inf)
 
 
-def _label(
+def _noise_labels(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.float64], colors: NDArray[np.uint8], plab: NDArray[np.float64]
-) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64]]:
-    """Step 5: palette index, BLEND or OTHER for every unique colour."""
-    n = ucolors.shape[0]
+) -> NDArray[np.int64]:
+    """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER."""
     idx, dist = _nearest(ulab, plab)
     labels = np.where(dist <= NOISE_DELTA_E, idx, OTHER).astype(np.int64)
     # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).
@@ -844,17 +850,27 @@ def _label(
         j = np.argmin(codes, axis=1)
         close = codes[np.arange(part.size), j] <= NOISE_CODES
         labels[part[close]] = j[close]
-    parents = np.full((n, 2), -1, np.int64)
-    mix = np.full(n, np.nan)
+    return labels
+
+
+def label_blends(palette: Palette, ucolors: NDArray[np.uint8]) -> Palette:
+    """Return ``palette`` with every OTHER unique colour that is a two-colour blend
+    labelled BLEND, with its two parents and mix fraction.
+
+    ``ucolors`` are the unique colours ``palette.labels`` refers to.
+    """
+    labels = palette.labels.copy()
+    parents = np.full((labels.size, 2), -1, np.int64)
+    mix = np.full(labels.size, np.nan)
     rest = np.flatnonzero(labels == OTHER)
     if rest.size:
         # Encoded values only here: renderers blend anti-aliased edges in
         # encoded sRGB, and halving the work matters for images with a
         # million colours. Candidates (step 4) are also tested in linear light.
-        pair, frac, resid = _best_pair(ucolors[rest], colors, linear=False)
+        pair, frac, resid = _best_pair(np.asarray(ucolors)[rest], palette.colors, linear=False)
         is_blend = resid <= BLEND_TOLERANCE
         hit = rest[is_blend]
         labels[hit] = BLEND
         parents[hit] = pair[is_blend]
         mix[hit] = frac[is_blend]
-    return labels, parents, mix
+    return replace(palette, labels=labels, parents=parents, mix=mix)
