@@ -26,7 +26,7 @@ from inkshift.chart.unique import expand
 from inkshift.check import check
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import InputError
-from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
+from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.printing.gamut import gamut_coverage, gamut_volume
@@ -262,10 +262,8 @@ def write_compare_outputs(report: CompareReport, out_dir: str | Path) -> dict[st
     """Write difference maps, the palette sheet and report.json atomically into ``out_dir``."""
     from inkshift.report.images import Swatch, scalar_map, swatch_sheet
 
-    out, created = ensure_writable_dir(out_dir)
-    written: list[Path] = []
     paths: dict[str, Path] = {}
-    try:
+    with output_folder(out_dir) as out:
         inverse = report.profiles[0].check.unique.inverse
         for diff in report.differences:
             key = f"difference_{diff.a}_vs_{diff.b}"
@@ -276,8 +274,7 @@ def write_compare_outputs(report: CompareReport, out_dir: str | Path) -> dict[st
                 title=f"Where the prints differ: {diff.a} vs {diff.b}",
                 legend_label="ΔE00 between the two prints",
             )
-            paths[key] = out / f"{safe}.png"
-            written.append(save_image_atomic(img, paths[key]))
+            paths[key] = out.image(f"{safe}.png", img)
         rows = []
         first = report.profiles[0].check
         rows.append(("screen", [
@@ -290,21 +287,9 @@ def write_compare_outputs(report: CompareReport, out_dir: str | Path) -> dict[st
                        marks=tuple(m for m, v in (("OUT", c.out_of_gamut), ("MERGE", "merges" in c.verdicts)) if v))
                 for c in p.check.colors
             ]))
-        paths["palettes"] = out / "palettes.png"
-        written.append(save_image_atomic(swatch_sheet(rows), paths["palettes"], icc_profile=srgb_profile_bytes()))
-        paths["report"] = out / "report.json"
-        report.outputs = {k: str(v) for k, v in paths.items()}
-        written.append(write_text_atomic(paths["report"], json.dumps(report.to_dict(), indent=2) + "\n"))
-    except BaseException:
-        report.outputs = {}
-        for p in written:
-            p.unlink(missing_ok=True)
-        if created:
-            try:
-                out.rmdir()
-            except OSError:
-                pass
-        raise
+        paths["palettes"] = out.image("palettes.png", swatch_sheet(rows), icc_profile=srgb_profile_bytes())
+        report.outputs = {k: str(v) for k, v in paths.items()} | {"report": str(out.path / "report.json")}
+        paths["report"] = out.text("report.json", json.dumps(report.to_dict(), indent=2) + "\n")
     return paths
 
 

@@ -17,7 +17,15 @@ from PIL import Image
 
 from inkshift.errors import InputError
 
-__all__ = ["atomic_path", "write_bytes_atomic", "write_text_atomic", "save_image_atomic", "ensure_writable_dir"]
+__all__ = [
+    "atomic_path",
+    "write_bytes_atomic",
+    "write_text_atomic",
+    "save_image_atomic",
+    "ensure_writable_dir",
+    "OutputFolder",
+    "output_folder",
+]
 
 
 @contextmanager
@@ -87,3 +95,43 @@ def _remove_empty(path: Path) -> None:
         path.rmdir()
     except OSError:
         pass
+
+
+class OutputFolder:
+    """A folder that a command writes its files into, remembering what it wrote."""
+
+    def __init__(self, path: Path) -> None:
+        self.path = path
+        self.written: list[Path] = []
+
+    def image(self, name: str, image: Image.Image, **params: object) -> Path:
+        """Save a Pillow image as PNG under ``name`` atomically and return its path."""
+        path = save_image_atomic(image, self.path / name, **params)
+        self.written.append(path)
+        return path
+
+    def text(self, name: str, text: str) -> Path:
+        """Write UTF-8 ``text`` under ``name`` atomically and return its path."""
+        path = write_text_atomic(self.path / name, text)
+        self.written.append(path)
+        return path
+
+
+@contextmanager
+def output_folder(path: str | Path) -> Iterator[OutputFolder]:
+    """Yield an :class:`OutputFolder` for ``path``; on any failure remove what it wrote.
+
+    Files already renamed into place by this block are deleted again, and the
+    folder itself is removed if this call created it, so a failed command
+    leaves nothing behind.
+    """
+    out, created = ensure_writable_dir(path)
+    folder = OutputFolder(out)
+    try:
+        yield folder
+    except BaseException:
+        for written in folder.written:
+            written.unlink(missing_ok=True)
+        if created:
+            _remove_empty(out)
+        raise

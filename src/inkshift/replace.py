@@ -103,7 +103,7 @@ from inkshift.check import check, open_output_profile
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import CVD_MERGE_DELTA_E, simulate_cvd_lab
 from inkshift.errors import InputError, ProfileError
-from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
+from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
@@ -847,10 +847,8 @@ def write_replace_outputs(result: ReplaceReport, out_dir: str | Path) -> dict[st
     from inkshift.report.images import Swatch, swatch_sheet
 
     preview = recolor_chart(result)
-    out, created = ensure_writable_dir(out_dir)
-    paths = {key: out / name for key, name in OUTPUT_FILES.items()}
-    written: list[Path] = []
-    try:
+    with output_folder(out_dir) as out:
+        paths = {key: out.path / name for key, name in OUTPUT_FILES.items()}
         rows = [
             ("original", [
                 Swatch(hex_rgb(c.original_hex), lab_to_srgb8(np.array(c.original_print_lab)), label=c.original_hex,
@@ -863,21 +861,11 @@ def write_replace_outputs(result: ReplaceReport, out_dir: str | Path) -> dict[st
                 for c in result.colors
             ]),
         ]
-        written.append(save_image_atomic(swatch_sheet(rows), paths["swatches"], icc_profile=srgb_profile_bytes()))
+        out.image(OUTPUT_FILES["swatches"], swatch_sheet(rows), icc_profile=srgb_profile_bytes())
         img = Image.fromarray(preview, mode="RGB")
-        written.append(save_image_atomic(img, paths["preview"], icc_profile=srgb_profile_bytes()))
+        out.image(OUTPUT_FILES["preview"], img, icc_profile=srgb_profile_bytes())
         result.outputs = {key: str(p) for key, p in paths.items()}
-        written.append(write_text_atomic(paths["report"], json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n"))
-    except BaseException:
-        result.outputs = {}
-        for p in written:
-            p.unlink(missing_ok=True)
-        if created:
-            try:
-                out.rmdir()
-            except OSError:
-                pass
-        raise
+        out.text(OUTPUT_FILES["report"], json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n")
     return paths
 
 
