@@ -9,7 +9,15 @@ from typing import List, Optional
 import typer
 
 from inkshift.cli import app
-from inkshift.commands.check import INTENT_CHOICES
+from inkshift.commands.options import (
+    BpcOption,
+    GamutOption,
+    GrayProfileOption,
+    IntentOption,
+    JsonOption,
+    ProfileOption,
+    check_intent,
+)
 from inkshift.errors import InputError
 from inkshift.readability import GRAY_PROFILE
 from inkshift.shipped import DEFAULT_PROFILE
@@ -28,22 +36,21 @@ def ramp_command(
     ),
     steps: Optional[int] = typer.Option(None, "--steps", "-n", help="With --from-image: number of steps to sample (default 9)."),
     diverging: bool = typer.Option(False, "--diverging", help="The scale runs to a lightest (or darkest) middle and back."),
-    profile: str = typer.Option(DEFAULT_PROFILE, "--profile", "-p", help="Output profile: a shipped short name or an ICC file."),
-    gray_profile: str = typer.Option(GRAY_PROFILE, "--gray-profile", help="Grayscale output profile for the black-and-white print."),
-    intent: str = typer.Option("relative", "--intent", "-i", help="Rendering intent: " + ", ".join(INTENT_CHOICES) + "."),
-    bpc: bool = typer.Option(True, "--bpc/--no-bpc", help="Black point compensation for the separation."),
-    as_json: bool = typer.Option(False, "--json", help="Print the JSON report instead of the summary."),
+    profile: ProfileOption = DEFAULT_PROFILE,
+    gray_profile: GrayProfileOption = GRAY_PROFILE,
+    intent: IntentOption = "relative",
+    bpc: BpcOption = True,
+    as_json: JsonOption = False,
     step_threshold: Optional[float] = typer.Option(None, "--step-threshold", help="Least ΔE00 between adjacent steps (default 3)."),
     gray_step_threshold: Optional[float] = typer.Option(None, "--gray-step-threshold", help="Least L* between adjacent gray steps (default 3)."),
     reversal_tolerance: Optional[float] = typer.Option(None, "--reversal-tolerance", help="L* a step may turn back before it counts (default 1)."),
-    gamut: float = typer.Option(OUT_OF_GAMUT_DELTA_E, "--gamut-tolerance", help="Round-trip ΔE00 beyond which a colour is out of gamut."),
+    gamut: GamutOption = OUT_OF_GAMUT_DELTA_E,
 ) -> None:
     """Check that a colour scale stays ordered in lightness and keeps its steps apart in print and in gray."""
     from inkshift.ramp import DEFAULT_STRIP_STEPS, RampLimits, check_ramp, check_ramp_image, format_ramp
     from inkshift.thresholds import Thresholds
 
-    if intent.lower() not in INTENT_CHOICES:
-        raise InputError(f"unknown rendering intent '{intent}'; use one of: {', '.join(INTENT_CHOICES)}")
+    check_intent(intent)
     defaults = RampLimits()
     limits = RampLimits(
         step_delta_e=defaults.step_delta_e if step_threshold is None else step_threshold,

@@ -9,7 +9,15 @@ from typing import List, Optional
 import typer
 
 from inkshift.cli import app
-from inkshift.commands.check import INTENT_CHOICES
+from inkshift.commands.options import (
+    BpcOption,
+    GamutOption,
+    IntentOption,
+    JsonOption,
+    ProfilesOption,
+    check_gamut,
+    check_intent,
+)
 from inkshift.errors import InputError
 from inkshift.shipped import DEFAULT_PROFILE
 from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
@@ -23,22 +31,18 @@ def swatches_command(
     file: Optional[List[Path]] = typer.Option(
         None, "--file", "-f", help="A colour list: .csv/.tsv with a header, or text with one colour per line. Repeatable."
     ),
-    profile: Optional[List[str]] = typer.Option(
-        None, "--profile", "-p", help=f"Output profile: a shipped short name or an ICC file (default {DEFAULT_PROFILE}). Repeatable."
-    ),
-    intent: str = typer.Option("relative", "--intent", "-i", help="Rendering intent: " + ", ".join(INTENT_CHOICES) + "."),
-    bpc: bool = typer.Option(True, "--bpc/--no-bpc", help="Black point compensation for the separation."),
-    as_json: bool = typer.Option(False, "--json", help="Print the JSON report instead of the tables."),
-    gamut: float = typer.Option(OUT_OF_GAMUT_DELTA_E, "--gamut-tolerance", help="Round-trip ΔE00 beyond which a colour is out of gamut."),
+    profile: ProfilesOption = None,
+    intent: IntentOption = "relative",
+    bpc: BpcOption = True,
+    as_json: JsonOption = False,
+    gamut: GamutOption = OUT_OF_GAMUT_DELTA_E,
 ) -> None:
     """Show whether each colour prints, how far it moves, its ink recipe and the nearest printable colour."""
     from inkshift.colorlist import parse_named_color, read_color_file
     from inkshift.swatches import check_swatches, format_swatches
 
-    if intent.lower() not in INTENT_CHOICES:
-        raise InputError(f"unknown rendering intent '{intent}'; use one of: {', '.join(INTENT_CHOICES)}")
-    if not gamut > 0:
-        raise InputError(f"--gamut-tolerance must be a positive ΔE00, got {gamut}")
+    check_intent(intent)
+    check_gamut(gamut)
     specs = [parse_named_color(c) for c in colors or []]
     for path in file or []:
         specs.extend(read_color_file(path))
