@@ -221,6 +221,16 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
+# Two colours within d ΔE00 are within d * (_DE76_BASE + _DE76_PER_CHROMA * (C1 + C2))
+# ΔE*ab (C = C*ab), so the noise test skips pairs farther apart. Derivation from
+# Sharma, Wu & Dalal (2005): ΔE*ab <= the distance in a' b' (a' = (1 + G) a*,
+# one G per pair); |ΔL'| / S_L <= ΔE00 with S_L <= 1.75; the chroma and hue terms
+# y, z satisfy y^2 + z^2 + R_T y z <= ΔE00^2 with |R_T| <= 2 sin 60° (R_C <= 2,
+# Δθ <= 30°), so |(y, z)| <= ΔE00 / sqrt(1 - sin 60°) = 2.73 ΔE00; S_C = 1 + 0.045 C̄'
+# and S_H <= 1 + 0.015 * 1.93 C̄' <= S_C (T <= 1.93); C̄' <= 0.75 (C1 + C2) (G <= 0.5).
+# Hence 1.75 + 2.73 (1 + 0.045 * 0.75 (C1 + C2)); rounded up by 2 %.
+_DE76_BASE = 1.02 * (1.75 + 2.73)
+_DE76_PER_CHROMA = 1.02 * 2.73 * 0.045 * 0.75
 _REFINE_STEPS = 4  # median-shift steps when re-centring a group's colour
 _ALL_PAIRS_UP_TO = 16  # palettes up to this size: every pair is tried as a blend's parents
 _PARENTS = 8  # larger palettes: pairs among this many nearest colours (Euclidean, codes)
@@ -665,11 +675,16 @@ def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> N
     return out
 
 
-def _nearest(lab_a: NDArray[np.float64], lab_b: NDArray[np.float64]) -> tuple[NDArray[np.int64], NDArray[np.float64]]:
+def _nearest(
+    lab_a: NDArray[np.float64], lab_b: NDArray[np.float64], within: float | None = None
+) -> tuple[NDArray[np.int64], NDArray[np.float64]]:
     """Nearest of ``lab_b`` for each of ``lab_a`` by CIEDE2000.
 
     The two nearest by ΔE*ab are scored with CIEDE2000 and the better kept; this
-    avoids an N x K CIEDE2000 matrix for images with many colours.
+    avoids an N x K CIEDE2000 matrix for images with many colours. With
+    ``within`` (ΔE00), colours that cannot be that close to any colour of
+    ``lab_b`` (see ``_DE76_BASE``) are not scored: they get index -1 and
+    distance inf.
     """
     lab_a = np.asarray(lab_a, np.float64)
     lab_b = np.asarray(lab_b, np.float64)
@@ -678,15 +693,27 @@ def _nearest(lab_a: NDArray[np.float64], lab_b: NDArray[np.float64]) -> tuple[ND
         return np.full(n, -1, np.int64), np.full(n, np.inf)
     idx = np.empty(n, np.int64)
     dist = np.empty(n)
+    c_b = np.hypot(lab_b[:, 1], lab_b[:, 2])
     for s in range(0, n, _CHUNK):
         part = lab_a[s : s + _CHUNK]
         dab = delta_e_1976(part[:, None, :], lab_b[None, :, :])
+        if within is None:
+            sel = slice(None)
+        else:
+            c_a = np.hypot(part[:, 1], part[:, 2])
+            reach = within * (_DE76_BASE + _DE76_PER_CHROMA * (c_a[:, None] + c_b[None, :]))
+            sel = np.flatnonzero((dab <= reach).any(axis=1))
+        dab, part = dab[sel], part[sel]
         top = np.argsort(dab, axis=1)[:, : min(2, k)]
         d00 = delta_e_2000(part[:, None, :], lab_b[top])
         best = np.argmin(d00, axis=1)
         rows = np.arange(part.shape[0])
-        idx[s : s + _CHUNK] = top[rows, best]
-        dist[s : s + _CHUNK] = d00[rows, best]
+        i_part = np.full(min(n, s + _CHUNK) - s, -1, np.int64)
+        d_part = np.full(i_part.size, np.inf)
+        i_part[sel] = top[rows, best]
+        d_part[sel] = d00[rows, best]
+        idx[s : s + _CHUNK] = i_part
+        dist[s : s + _CHUNK] = d_part
     return idx, dist
 
 
@@ -839,17 +866,29 @@ def _noise_labels(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.float64], colors: NDArray[np.uint8], plab: NDArray[np.float64]
 ) -> NDArray[np.int64]:
     """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER."""
-    idx, dist = _nearest(ulab, plab)
+    idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E)
     labels = np.where(dist <= NOISE_DELTA_E, idx, OTHER).astype(np.int64)
     # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).
     rest = np.flatnonzero(labels == OTHER)
-    pc = colors.astype(np.int16)
-    for s in range(0, rest.size, _CHUNK):
-        part = rest[s : s + _CHUNK]
-        codes = np.abs(ucolors[part].astype(np.int16)[:, None, :] - pc[None]).max(axis=2)
-        j = np.argmin(codes, axis=1)
-        close = codes[np.arange(part.size), j] <= NOISE_CODES
-        labels[part[close]] = j[close]
+    if rest.size == 0 or colors.shape[0] == 0:
+        return labels
+    # Largest-channel code distance to each palette colour through 256-entry
+    # tables (uint8, one gather per channel); the first nearest wins ties, as argmin.
+    levels = np.arange(256, dtype=np.int16)
+    channels = [ucolors[rest, ch] for ch in range(ucolors.shape[1])]
+    best = np.full(rest.size, 255, np.uint8)
+    best_j = np.full(rest.size, -1, np.int64)
+    for j, pcol in enumerate(colors):
+        d = None
+        for ch, values in enumerate(channels):
+            table = np.abs(levels - np.int16(pcol[ch])).astype(np.uint8)
+            dc = table[values]
+            d = dc if d is None else np.maximum(d, dc, out=d)
+        better = d < best
+        best[better] = d[better]
+        best_j[better] = j
+    close = best <= NOISE_CODES
+    labels[rest[close]] = best_j[close]
     return labels
 
 
