@@ -38,7 +38,7 @@ from inkshift.errors import InputError, ProfileError
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
 from inkshift.proof import ink_percent, proof_colors
-from inkshift.report.console import format_pairs
+from inkshift.report.console import MAX_LISTED_PAIRS, format_pairs, more_line
 from inkshift.report.model import PairVerdict
 from inkshift.thresholds import Thresholds
 
@@ -376,8 +376,9 @@ def format_gray(result: GrayResult) -> list[str]:
         )
         lines.extend(
             f"  {p.a} and {p.b}: ΔE00 {p.screen_delta_e:.1f} on screen, {p.gray_delta_l:.1f} L* apart in gray"
-            for p in pairs
+            for p in pairs[:MAX_LISTED_PAIRS]
         )
+        lines.extend(more_line(len(pairs)))
     if not lines:
         lines.append(f"No chart colours merge in black and white (gray print on {result.gray_profile}, or L* alone).")
     return lines

@@ -10,7 +10,7 @@ from inkshift.report.model import CheckReport, PairVerdict
 if TYPE_CHECKING:
     from inkshift.compare import CompareReport
 
-__all__ = ["format_check", "format_compare", "format_table", "format_pairs"]
+__all__ = ["format_check", "format_compare", "format_table", "format_pairs", "more_line", "MAX_LISTED_PAIRS"]
 
 INTENT_WORDS = {
     "perceptual": "perceptual",
@@ -34,16 +34,26 @@ def format_table(headers: Sequence[str], rows: Sequence[Sequence[str]], right: S
     return out
 
 
+MAX_LISTED_PAIRS = 12
+"""Pairs listed per section on the console; report.json always lists them all."""
+
+
+def more_line(total: int) -> list[str]:
+    """Return the line that stands for pairs left off a console list, if any."""
+    hidden = total - MAX_LISTED_PAIRS
+    return [f"  ... and {hidden} more (all are in report.json)"] if hidden > 0 else []
+
+
 def format_pairs(title: str, pairs: Sequence[PairVerdict], other: str = "print") -> list[str]:
     """Return lines listing colour pairs and their ΔE00 on screen and in another rendition."""
     if not pairs:
         return []
     lines = [title]
-    for p in pairs:
+    for p in pairs[:MAX_LISTED_PAIRS]:
         lines.append(
             f"  {p.a} and {p.b}: ΔE00 {p.screen_delta_e:.1f} on screen, {p.print_delta_e:.1f} in {other}"
         )
-    return lines
+    return lines + more_line(len(pairs))
 
 
 def format_check(report: CheckReport) -> str:
