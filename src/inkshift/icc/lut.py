@@ -139,8 +139,11 @@ def eval_curve(curve: Curve, x: ArrayLike) -> NDArray[np.float64]:
     """
     x = np.clip(np.asarray(x, dtype=np.float64), 0.0, 1.0)
     if curve.kind == "identity":
-        y = x
-    elif curve.kind == "gamma":
+        return x
+    if curve.kind == "table" and curve.table is not None and len(curve.table) >= 2:
+        # Interpolating between table entries in 0..1 stays in 0..1 and finite.
+        return _interp_uniform(curve.table, x)
+    if curve.kind == "gamma":
         y = np.power(x, curve.gamma)
     elif curve.kind == "table":
         y = _interp_uniform(curve.table, x)
@@ -156,8 +159,16 @@ def _interp_uniform(table: NDArray[np.float64], x: NDArray[np.float64]) -> NDArr
     """Linear interpolation in a table of equally spaced entries over 0..1 (x already in 0..1)."""
     pos = x * (len(table) - 1)
     i = np.minimum(pos.astype(np.intp), len(table) - 2)
-    f = pos - i
-    return table[i] * (1.0 - f) + table[i + 1] * f
+    f = pos
+    f -= i
+    lo = table.take(i)
+    # lo + (hi - lo) f, written as lo (1 - f) + hi f to keep the original rounding.
+    out = table.take(i + 1)
+    out *= f
+    np.subtract(1.0, f, out=f)
+    lo *= f
+    out += lo
+    return out
 
 
 def invert_curve(curve: Curve, y: ArrayLike) -> NDArray[np.float64]:
@@ -212,8 +223,10 @@ def interpolate_clut(clut: Clut, x: ArrayLike, method: str = "tetrahedral") -> N
     grid = np.asarray(clut.grid, dtype=np.intp)
     n_in = grid.size
     pos = x * (grid - 1)
-    i0 = np.minimum(np.floor(pos).astype(np.intp), np.maximum(grid - 2, 0))
-    frac = np.clip(pos - i0, 0.0, 1.0)
+    i0 = np.minimum(pos.astype(np.intp), np.maximum(grid - 2, 0))  # pos >= 0: truncation is floor
+    frac = pos
+    frac -= i0
+    np.clip(frac, 0.0, 1.0, out=frac)
     strides = np.ones(n_in, dtype=np.intp)
     for k in range(n_in - 2, -1, -1):
         strides[k] = strides[k + 1] * grid[k + 1]
@@ -223,47 +236,68 @@ def interpolate_clut(clut: Clut, x: ArrayLike, method: str = "tetrahedral") -> N
 
     tetra = method == "tetrahedral" and n_in >= 3
     n_lin = n_in - 3 if tetra else n_in
-    out = np.zeros((x.shape[0], table.shape[1]))
+    # The tetrahedron (corner offsets and weights) depends only on the last three
+    # fractions, so it is found once and shared by every corner of the leading inputs.
+    cell = _tetrahedron(frac[:, -3:], step[-3:]) if tetra else None
+    out: NDArray[np.float64] | None = None
     for bits in itertools.product((0, 1), repeat=n_lin):
-        weight = np.ones(x.shape[0])
-        offset = base.copy()
+        weight: NDArray[np.float64] | None = None
+        offset = base
         for k, bit in enumerate(bits):
-            weight = weight * (frac[:, k] if bit else 1.0 - frac[:, k])
+            f = frac[:, k] if bit else 1.0 - frac[:, k]
+            weight = f.copy() if weight is None else np.multiply(weight, f, out=weight)
             if bit:
                 offset = offset + step[k]
-        if tetra:
-            value = _tetrahedral(table, offset, frac[:, -3:], step[-3:])
+        value = _tetrahedral_at(table, offset, cell) if cell is not None else table.take(offset, axis=0)
+        if weight is not None:
+            value *= weight[:, None]
+        if out is None:
+            out = value
         else:
-            value = table.take(offset, axis=0)
-        out += weight[:, None] * value
+            out += value
+    assert out is not None
     return out
 
 
-def _tetrahedral(
-    table: NDArray[np.float64], base: NDArray[np.intp], frac: NDArray[np.float64], step: NDArray[np.intp]
-) -> NDArray[np.float64]:
-    """Tetrahedral interpolation in a 3-D cell: walk from the base corner along the axes by decreasing fraction.
+def _tetrahedron(
+    frac: NDArray[np.float64], step: NDArray[np.intp]
+) -> tuple[NDArray[np.intp], NDArray[np.intp], int, tuple[NDArray[np.float64], ...]]:
+    """Corner offsets and weights of the tetrahedron holding each point of a 3-D cell.
 
-    The corners visited are base, base + step[largest], base + all steps but
-    step[smallest], and the far corner; their weights are the differences of
-    the sorted fractions.
+    Walk from the base corner along the axes by decreasing fraction: the corners
+    visited are base, base + step[largest], base + all steps but step[smallest],
+    and the far corner; their weights are the differences of the sorted fractions.
     """
     fx, fy, fz = frac[:, 0], frac[:, 1], frac[:, 2]
     # On ties these choices never name the same axis twice, which is all the walk needs.
     largest = np.where((fx >= fy) & (fx >= fz), 0, np.where(fy >= fz, 1, 2))
     smallest = np.where((fz <= fx) & (fz <= fy), 2, np.where(fy <= fx, 1, 0))
-    f_max = np.take_along_axis(frac, largest[:, None], axis=1)
-    f_min = np.take_along_axis(frac, smallest[:, None], axis=1)
-    f_mid = frac.sum(axis=1, keepdims=True) - f_max - f_min
+    rows = np.arange(frac.shape[0])
+    f_max = frac[rows, largest]
+    f_min = frac[rows, smallest]
+    f_mid = fx + fy
+    f_mid += fz
+    f_mid -= f_max
+    f_mid -= f_min
     total = int(step.sum())
-    c1 = base + step[largest]
-    c2 = base + (total - step[smallest])
-    return (
-        (1.0 - f_max) * table.take(base, axis=0)
-        + (f_max - f_mid) * table.take(c1, axis=0)
-        + (f_mid - f_min) * table.take(c2, axis=0)
-        + f_min * table.take(base + total, axis=0)
-    )
+    weights = (1.0 - f_max, f_max - f_mid, f_mid - f_min, f_min)
+    return step[largest], total - step[smallest], total, tuple(w[:, None] for w in weights)
+
+
+def _tetrahedral_at(
+    table: NDArray[np.float64],
+    base: NDArray[np.intp],
+    cell: tuple[NDArray[np.intp], NDArray[np.intp], int, tuple[NDArray[np.float64], ...]],
+) -> NDArray[np.float64]:
+    """Tetrahedral interpolation (Kasson, Nin & Plouffe 1995) at cells starting at ``base``."""
+    c1, c2, total, (w0, w1, w2, w3) = cell
+    out = table.take(base, axis=0)
+    out *= w0
+    for offset, w in ((base + c1, w1), (base + c2, w2), (base + total, w3)):
+        v = table.take(offset, axis=0)
+        v *= w
+        out += v
+    return out
 
 
 def eval_stages(stages: tuple[Stage, ...], x: ArrayLike, method: str = "tetrahedral") -> NDArray[np.float64]:
@@ -274,6 +308,8 @@ def eval_stages(stages: tuple[Stage, ...], x: ArrayLike, method: str = "tetrahed
     v = np.clip(np.asarray(x, dtype=np.float64), 0.0, 1.0)
     for stage in stages:
         if isinstance(stage, CurveSet):
+            if all(c.kind == "identity" for c in stage.curves):
+                continue
             v = np.stack([eval_curve(c, v[:, i]) for i, c in enumerate(stage.curves)], axis=1)
         elif isinstance(stage, MatrixStage):
             v = np.clip(v @ stage.matrix.T + stage.offset, 0.0, 1.0)
