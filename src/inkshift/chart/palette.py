@@ -89,7 +89,7 @@ from typing import Callable
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from inkshift.chart.unique import UniqueColors, unique_colors
+from inkshift.chart.unique import UniqueColors, pack_colors, unique_colors
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 
 __all__ = [
@@ -221,6 +221,8 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
+_COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
+_SPARSE_SHARE = 0.2  # colour changes between neighbours per pixel above which evidence is computed densely
 # Two colours within d ΔE00 are within d * (_DE76_BASE + _DE76_PER_CHROMA * (C1 + C2))
 # ΔE*ab (C = C*ab), so the noise test skips pairs farther apart. Derivation from
 # Sharma, Wu & Dalal (2005): ΔE*ab <= the distance in a' b' (a' = (1 + G) a*,
@@ -429,29 +431,101 @@ def _evidence_counts(
 
     Works in strips of rows with :data:`LINE_RUN` rows of overlap on each side,
     which is enough for every neighbourhood test and for deciding whether a
-    vertical run reaches LINE_RUN; memory then stays proportional to one strip.
+    vertical run reaches LINE_RUN; memory then stays proportional to one strip
+    plus one byte of flags per pixel.
     """
     h, w, _ = pixels.shape
-    out = [np.zeros(n, np.int64) for _ in range(5)]
     step = max(64, _STRIP_PIXELS // max(w, 1))
     halo = LINE_RUN
+    # With many colours (a photograph), one byte of flags per pixel, counted per
+    # colour at the end: a per-strip bincount would clear an array as long as
+    # the colour list every time, which costs more than the tests themselves.
+    per_strip = n <= _STRIP_PIXELS  # few colours: count each strip at once, no flags
+    flags = np.zeros(0 if per_strip else h * w, np.uint8)
+    out = [np.zeros(n, np.int64) for _ in range(6)]
     for s0 in range(0, h, step):
         s1 = min(h, s0 + step)
         w0, w1 = max(0, s0 - halo), min(h, s1 + halo)
         ok = None if evidence_ok is None else evidence_ok[w0:w1]
-        masks = _pixel_evidence(pixels[w0:w1], ok)
-        flat = masks[0]
+        keys = inverse[w0 * w : w1 * w].reshape(w1 - w0, w)
+        flat, core, line, graded = _pixel_evidence(pixels[w0:w1], ok, keys)
         rim = flat & _near(~flat, HALO_REACH)
-        inv = inverse[s0 * w : s1 * w]
-        for k, mask in enumerate(masks + (rim,)):
-            out[k] += np.bincount(inv[mask[s0 - w0 : s1 - w0].reshape(-1)], minlength=n)
-    return tuple(out)
+        inner = slice(s0 - w0, s1 - w0)
+        okr = np.ones((s1 - s0, w), bool) if ok is None else ok[inner]
+        masks = (okr & ~flat[inner], okr & ~core[inner], line[inner], graded[inner], rim[inner])
+        if per_strip:
+            inv = inverse[s0 * w : s1 * w]
+            for bit, mask in enumerate(masks):
+                out[bit] += np.bincount(inv[mask.reshape(-1)], minlength=n)
+            out[5] += np.bincount(inv if ok is None else inv[okr.reshape(-1)], minlength=n)
+            continue
+        f = flags[s0 * w : s1 * w].reshape(s1 - s0, w)
+        for bit, mask in enumerate(masks + (okr,)):
+            f |= mask.view(np.uint8) << np.uint8(bit)
+    for c0 in range(0, flags.size, _COUNT_CHUNK):
+        part = flags[c0 : c0 + _COUNT_CHUNK]
+        inv = inverse[c0 : c0 + _COUNT_CHUNK]
+        for bit in range(6):
+            out[bit] += np.bincount(inv[(part & np.uint8(1 << bit)) != 0], minlength=n)
+    counted = out[5]
+    # Flat and core pixels are the rule in a chart: count the exceptions.
+    return counted - out[0], counted - out[1], out[2], out[3], out[4]
 
 
 def _pixel_evidence(
+    pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None, keys: NDArray | None = None
+) -> tuple[NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_]]:
+    """Flat, core, line and graded masks (H, W); see step 1 of the module docstring.
+
+    ``keys`` (H, W) are equal exactly where pixels are equal (packed colours or
+    colour indices). Along each axis only the pixels with a different colour
+    within :data:`GRADIENT_REACH` are examined channel by channel; every other
+    pixel is flat, core and not between, sandwiched or graded along that axis.
+    """
+    h, w, c = pixels.shape
+    if keys is None:
+        keys = pack_colors(pixels)
+    keys = keys.reshape(h, w)
+    changes = np.count_nonzero(keys[:, 1:] != keys[:, :-1]) + np.count_nonzero(keys[1:] != keys[:-1])
+    if changes > _SPARSE_SHARE * h * w:
+        # Busy (a photograph, a JPEG): shifted whole arrays beat gathers.
+        return _pixel_evidence_dense(pixels, evidence_ok)
+    flat = np.ones((h, w), bool)
+    core = np.ones((h, w), bool)
+    graded = np.zeros((h, w), bool)
+    sandwiched = []
+    breaks = []
+    flat_px = np.ascontiguousarray(pixels).reshape(-1, c)
+    for axis in (0, 1):
+        idx, ev = _axis_evidence(flat_px, keys, (h, w), axis)
+        far = ev["prev_far"] & ev["next_far"]
+        flat.reshape(-1)[idx[ev["prev_far"] | ev["next_far"]]] = False
+        core.reshape(-1)[idx[far & ev["inside"]]] = False
+        graded.reshape(-1)[idx[ev["graded"]]] = True
+        sw = np.zeros((h, w), bool)
+        sw.reshape(-1)[idx[ev["sandwiched"]]] = True
+        sandwiched.append(sw)
+        breaks.append(idx[ev["next_apart"]])
+    # A line pixel runs along one axis and is sandwiched across it.
+    line = np.zeros((h, w), bool)
+    for run_axis, across in ((1, 0), (0, 1)):
+        cand = np.flatnonzero(core & sandwiched[across])
+        if cand.size:
+            long_ = _run_length_at(breaks[run_axis], cand, (h, w), run_axis) >= LINE_RUN
+            line.reshape(-1)[cand[long_]] = True
+    graded &= flat
+    if evidence_ok is not None:
+        flat &= evidence_ok
+        core &= evidence_ok
+        line &= evidence_ok
+        graded &= evidence_ok
+    return flat, core, line, graded
+
+
+def _pixel_evidence_dense(
     pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None
 ) -> tuple[NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_], NDArray[np.bool_]]:
-    """Flat, core, line and graded masks (H, W); see step 1 of the module docstring."""
+    """:func:`_pixel_evidence` on whole shifted arrays, for busy images (photographs, JPEGs)."""
     h, w, c = pixels.shape
     flat = np.ones((h, w), bool)
     core = np.ones((h, w), bool)
@@ -507,6 +581,101 @@ def _pixel_evidence(
         line &= evidence_ok
         graded &= evidence_ok
     return flat, core, line, graded
+
+
+def _axis_evidence(
+    pixels: NDArray[np.uint8], keys: NDArray | None, shape: tuple[int, int], axis: int
+) -> tuple[NDArray[np.intp], dict[str, NDArray[np.bool_]]]:
+    """Neighbour tests along ``axis`` for the pixels with a colour change within GRADIENT_REACH.
+
+    Returns the flat indices of those pixels and, for each, prev_far / next_far
+    (some channel differs from that neighbour by more than FLAT_TOLERANCE),
+    next_apart (by more than RUN_TOLERANCE), inside (every channel within the
+    neighbours' range), sandwiched (stands out from both neighbours at one or two
+    pixels more than they differ from each other) and graded (GRADIENT_STEP).
+    A neighbour past the border counts as equal to the pixel.
+    """
+    h, w = shape
+    n_ax = shape[axis]
+    reach = GRADIENT_REACH
+    if keys is None:
+        active = np.ones(shape, bool)
+    else:
+        k = keys.reshape(shape)
+        change = np.zeros(shape, bool)  # change[i]: pixel i differs from pixel i + 1
+        lo = [slice(None), slice(None)]
+        hi = [slice(None), slice(None)]
+        lo[axis], hi[axis] = slice(0, n_ax - 1), slice(1, n_ax)
+        np.not_equal(k[tuple(lo)], k[tuple(hi)], out=change[tuple(lo)])
+        active = change.copy()
+        for d in range(1, reach + 1):  # changes between j and j + 1 for j in i - reach .. i + reach - 1
+            a_, b_ = [slice(None), slice(None)], [slice(None), slice(None)]
+            a_[axis], b_[axis] = slice(d, n_ax), slice(0, n_ax - d)
+            active[tuple(a_)] |= change[tuple(b_)]
+            if d < reach:
+                active[tuple(b_)] |= change[tuple(a_)]
+    idx = np.flatnonzero(active)
+    tol = FLAT_TOLERANCE
+    g = GRADIENT_STEP
+    pos = idx // w if axis == 0 else idx % w
+    stride = w if axis == 0 else 1
+    x0 = pixels.take(idx, axis=0).astype(np.int16)  # (m, C)
+
+    def diffs(r: int) -> tuple[NDArray[np.int16], NDArray[np.int16]]:
+        """(x[i] - x[i-r], x[i+r] - x[i]) per channel; a neighbour past the border is the pixel."""
+        before = pixels.take(np.where(pos >= r, idx - r * stride, idx), axis=0)
+        after = pixels.take(np.where(pos + r < n_ax, idx + r * stride, idx), axis=0)
+        return x0 - before, after.astype(np.int16) - x0
+
+    a, b = diffs(1)
+    aa, ab = np.abs(a), np.abs(b)
+    p1, n1 = aa.max(axis=1), ab.max(axis=1)
+    prev_far = p1 > tol
+    next_far = n1 > tol
+    next_apart = n1 > RUN_TOLERANCE
+    inside = ((a.astype(np.int32) * b >= 0) | (np.minimum(aa, ab) <= tol)).all(axis=1)
+    pn1 = np.abs(a + b).max(axis=1)
+    a2, b2 = diffs(2)
+    p2, n2, pn2 = np.abs(a2).max(axis=1), np.abs(b2).max(axis=1), np.abs(a2 + b2).max(axis=1)
+    if n_ax > 2 * reach:
+        ar, br = diffs(reach)
+        graded = (((ar >= g) & (br >= g)) | ((ar <= -g) & (br <= -g))).any(axis=1)
+    else:
+        graded = np.zeros(idx.size, bool)
+    sandwiched = np.zeros(idx.size, bool)
+    for p_, n_, pn in ((p1, n1, pn1), (p2, n2, pn2)):
+        sandwiched |= (p_ > tol) & (n_ > tol) & (pn <= np.minimum(p_, n_))
+    return idx, {
+        "prev_far": prev_far,
+        "next_far": next_far,
+        "next_apart": next_apart,
+        "inside": inside,
+        "sandwiched": sandwiched,
+        "graded": graded,
+    }
+
+
+def _run_length_at(
+    apart: NDArray[np.intp], query: NDArray[np.intp], shape: tuple[int, int], axis: int
+) -> NDArray[np.intp]:
+    """Length of the run along ``axis`` holding each ``query`` pixel (flat indices).
+
+    Runs are broken after every pixel in ``apart`` (flat indices of pixels that
+    differ from the next one along the axis by more than RUN_TOLERANCE) and at
+    the border.
+    """
+    h, w = shape
+    if axis == 1:
+        order = lambda i: i  # noqa: E731  (row-major position)
+        ends = np.arange(w - 1, h * w, w, dtype=np.intp)
+    else:
+        order = lambda i: (i % w) * h + i // w  # noqa: E731  (column-major position)
+        ends = np.arange(h - 1, h * w, h, dtype=np.intp)
+    b = np.sort(np.concatenate([order(apart), ends]))  # repeats do no harm below
+    q = order(query)
+    k = np.searchsorted(b, q, side="left")
+    prev = np.where(k > 0, b[np.maximum(k - 1, 0)], -1)
+    return b[k] - prev
 
 
 def _near(mask: NDArray[np.bool_], reach: int) -> NDArray[np.bool_]:
