@@ -22,7 +22,7 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage, load_chart
 from inkshift.chart.palette import Palette, extract_palette
-from inkshift.chart.unique import expand, unique_colors
+from inkshift.chart.unique import expand, pixel_runs, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
 from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
@@ -309,16 +309,18 @@ def check(
     maps = None
     if keep_maps:
         shape = pixels.shape[:2]
+        runs = pixel_runs(uniq.inverse)
         if source is srgb_profile():
             screen_rgb = pixels
         else:
-            screen_rgb = expand(lab_to_srgb8(proof.screen_lab), uniq.inverse, shape)
+            screen_rgb = expand(lab_to_srgb8(proof.screen_lab), uniq.inverse, shape, runs)
         maps = ProofMaps(
             screen_rgb=screen_rgb,
-            print_rgb=expand(proof.print_rgb, uniq.inverse, shape),
-            delta_e=expand(proof.delta_e.astype(np.float32), uniq.inverse, shape),
-            out_of_gamut=expand(proof.out_of_gamut, uniq.inverse, shape),
+            print_rgb=expand(proof.print_rgb, uniq.inverse, shape, runs),
+            delta_e=expand(proof.delta_e.astype(np.float32), uniq.inverse, shape, runs),
+            out_of_gamut=expand(proof.out_of_gamut, uniq.inverse, shape, runs),
         )
+        del runs
 
     image_info = ImageInfo(
         path=chart.path,

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-__all__ = ["UniqueColors", "unique_colors", "pack_colors", "expand", "MAX_TABLE_BITS"]
+__all__ = ["UniqueColors", "PixelRuns", "unique_colors", "pack_colors", "pixel_runs", "expand", "MAX_TABLE_BITS"]
 
 MAX_TABLE_BITS = 24
 """Largest key space (bits) ranked by a direct table: 2**24 int32 = 64 MB, the
@@ -217,7 +217,30 @@ def _rank_wide(keys: NDArray[np.uint32]) -> tuple[NDArray[np.uint32], NDArray[np
     return ukeys.astype(np.uint32), inverse.reshape(-1).astype(np.int32)
 
 
-def expand(values_per_color: ArrayLike, inverse: ArrayLike, shape: tuple[int, ...]) -> NDArray:
+@dataclass(frozen=True)
+class PixelRuns:
+    """Runs of equal colour indices in row-major pixel order: ``colors[k]`` repeated ``lengths[k]`` times."""
+
+    colors: NDArray[np.int32]
+    lengths: NDArray[np.intp]
+
+
+def pixel_runs(inverse: ArrayLike) -> PixelRuns | None:
+    """Return the runs of ``inverse`` (``UniqueColors.inverse``), or None when they
+    are not at most a quarter as many as the pixels (a photograph), where
+    :func:`expand` is faster without them."""
+    inverse = np.asarray(inverse)
+    change = _run_changes(inverse)
+    if int(np.count_nonzero(change)) > inverse.size // _RUN_GAIN:
+        return None
+    starts = np.flatnonzero(change)
+    del change
+    return PixelRuns(colors=inverse[starts], lengths=np.diff(np.append(starts, inverse.size)))
+
+
+def expand(
+    values_per_color: ArrayLike, inverse: ArrayLike, shape: tuple[int, ...], runs: PixelRuns | None = None
+) -> NDArray:
     """Map per-colour values back to pixels with one ``np.take``.
 
     Parameters
@@ -228,6 +251,10 @@ def expand(values_per_color: ArrayLike, inverse: ArrayLike, shape: tuple[int, ..
         ``(H*W,)`` colour index of each pixel (``UniqueColors.inverse``).
     shape
         ``(H, W)`` of the image.
+    runs
+        :func:`pixel_runs` of ``inverse``, if known: the values are then spread
+        run by run with ``np.repeat`` (measured on a 24-megapixel chart: 0.17 s
+        per map against 0.3-0.65 s for the gather).
 
     Returns
     -------
@@ -235,5 +262,8 @@ def expand(values_per_color: ArrayLike, inverse: ArrayLike, shape: tuple[int, ..
         ``shape + values_per_color.shape[1:]``.
     """
     values = np.asarray(values_per_color)
-    out = np.take(values, np.asarray(inverse), axis=0)
+    if runs is not None:
+        out = np.repeat(values[runs.colors], runs.lengths, axis=0)
+    else:
+        out = np.take(values, np.asarray(inverse), axis=0)
     return out.reshape(tuple(shape) + values.shape[1:])
