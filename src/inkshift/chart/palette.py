@@ -627,21 +627,31 @@ def _axis_evidence(
         after = pixels.take(np.where(pos + r < n_ax, idx + r * stride, idx), axis=0)
         return x0 - before, after.astype(np.int16) - x0
 
+    def largest(d: NDArray[np.int16]) -> NDArray[np.int16]:
+        """Largest absolute value over the channels (column by column: faster than a reduction over a short axis)."""
+        out = np.abs(d[:, 0])
+        for ch in range(1, d.shape[1]):
+            np.maximum(out, np.abs(d[:, ch]), out=out)
+        return out
+
     a, b = diffs(1)
-    aa, ab = np.abs(a), np.abs(b)
-    p1, n1 = aa.max(axis=1), ab.max(axis=1)
+    p1, n1 = largest(a), largest(b)
     prev_far = p1 > tol
     next_far = n1 > tol
     next_apart = n1 > RUN_TOLERANCE
-    inside = ((a.astype(np.int32) * b >= 0) | (np.minimum(aa, ab) <= tol)).all(axis=1)
-    pn1 = np.abs(a + b).max(axis=1)
+    inside = np.ones(idx.size, bool)
+    for ch in range(a.shape[1]):
+        ac, bc = a[:, ch], b[:, ch]
+        inside &= (ac.astype(np.int32) * bc >= 0) | (np.minimum(np.abs(ac), np.abs(bc)) <= tol)
+    pn1 = largest(a + b)
     a2, b2 = diffs(2)
-    p2, n2, pn2 = np.abs(a2).max(axis=1), np.abs(b2).max(axis=1), np.abs(a2 + b2).max(axis=1)
+    p2, n2, pn2 = largest(a2), largest(b2), largest(a2 + b2)
+    graded = np.zeros(idx.size, bool)
     if n_ax > 2 * reach:
         ar, br = diffs(reach)
-        graded = (((ar >= g) & (br >= g)) | ((ar <= -g) & (br <= -g))).any(axis=1)
-    else:
-        graded = np.zeros(idx.size, bool)
+        for ch in range(ar.shape[1]):
+            arc, brc = ar[:, ch], br[:, ch]
+            graded |= ((arc >= g) & (brc >= g)) | ((arc <= -g) & (brc <= -g))
     sandwiched = np.zeros(idx.size, bool)
     for p_, n_, pn in ((p1, n1, pn1), (p2, n2, pn2)):
         sandwiched |= (p_ > tol) & (n_ > tol) & (pn <= np.minimum(p_, n_))
