@@ -15,7 +15,7 @@ script prints seconds, the ratio to the floor, and peak memory (maximum
 resident set size of the child) above a process that only decoded the image,
 per pixel.
 
-Run: ``python benchmarks/check_command.py [--megapixels 24] [--keep DIR]``
+Run: ``python benchmarks/check_command.py [--megapixels 24] [--keep DIR] [--only chart|photo]``
 """
 
 from __future__ import annotations
@@ -99,6 +99,25 @@ def make_photo(path: Path, width: int, height: int) -> None:
     Image.fromarray(img).save(path)
 
 
+UNIQUE = """
+import sys
+import numpy as np
+from PIL import Image
+Image.MAX_IMAGE_PIXELS = None
+from inkshift.chart.unique import unique_colors
+print(len(unique_colors(np.asarray(Image.open(sys.argv[1]).convert("RGB")))))
+"""
+
+MAKE = """
+import sys
+from pathlib import Path
+sys.path.insert(0, sys.argv[1])
+import check_command as bench
+bench.make_chart(Path(sys.argv[2]), int(sys.argv[4]), int(sys.argv[5]))
+bench.make_photo(Path(sys.argv[3]), int(sys.argv[4]), int(sys.argv[5]))
+"""
+
+
 def bench(label: str, image: Path, work: Path) -> None:
     with Image.open(image) as im:
         w, h = im.size
@@ -111,8 +130,9 @@ def bench(label: str, image: Path, work: Path) -> None:
     floor = decode_t + sep_only + write_only
     out = work / f"{label}_out"
     check_t, check_rss = run_child([sys.executable, "-m", "inkshift", "check", str(image), "--out", str(out)])
-    with Image.open(image) as im:
-        uniq = len(np.unique(np.asarray(im.convert("RGB")).reshape(-1, 3) @ np.array([65536, 256, 1]))) if pixels <= 30_000_000 else -1
+    # In a child: Linux keeps a process's peak RSS across exec, so a parent that
+    # once held big arrays would inflate every later child's figure.
+    uniq = int(subprocess.run([sys.executable, "-c", UNIQUE, str(image)], check=True, capture_output=True, text=True).stdout)
     above = (check_rss - decode_rss) / pixels
     print(f"{label}: {w} x {h} = {pixels / 1e6:.1f} MP, {uniq} unique colours")
     print(f"  floor: decode {decode_t:.2f} s + LittleCMS RGB->CMYK {sep_only:.2f} s + PNG write {write_only:.2f} s = {floor:.2f} s")
@@ -125,6 +145,7 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--megapixels", type=float, default=24.0)
     parser.add_argument("--keep", type=Path, default=None, help="keep the generated files in this folder")
+    parser.add_argument("--only", choices=("chart", "photo"), default=None, help="time one of the two inputs")
     args = parser.parse_args()
     height = int(round((args.megapixels * 1e6 / 1.5) ** 0.5))
     width = int(round(height * 1.5))
@@ -132,10 +153,14 @@ def main() -> None:
         work = args.keep or Path(tmp)
         work.mkdir(parents=True, exist_ok=True)
         chart, photo = work / "chart.png", work / "photo.png"
-        make_chart(chart, width, height)
-        make_photo(photo, width, height)
-        bench("chart", chart, work)
-        bench("photo", photo, work)
+        # Made in a child process for the same reason as the unique count.
+        subprocess.run(
+            [sys.executable, "-c", MAKE, str(Path(__file__).resolve().parent), str(chart), str(photo), str(width), str(height)],
+            check=True,
+        )
+        for label, image in (("chart", chart), ("photo", photo)):
+            if args.only in (None, label):
+                bench(label, image, work)
 
 
 if __name__ == "__main__":
