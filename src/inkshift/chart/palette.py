@@ -83,6 +83,7 @@ colours.
 
 from __future__ import annotations
 
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, replace
 from typing import Callable
 
@@ -222,6 +223,7 @@ _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noi
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
+_EVIDENCE_THREADS = 2  # worker threads over the strips (tuned on two cores)
 _SPARSE_SHARE = 0.2  # colour changes between neighbours per pixel above which evidence is computed densely
 # Two colours within d ΔE00 are within d * (_DE76_BASE + _DE76_PER_CHROMA * (C1 + C2))
 # ΔE*ab (C = C*ab), so the noise test skips pairs farther apart. Derivation from
@@ -442,8 +444,8 @@ def _evidence_counts(
     # the colour list every time, which costs more than the tests themselves.
     per_strip = n <= _STRIP_PIXELS  # few colours: count each strip at once, no flags
     flags = np.zeros(0 if per_strip else h * w, np.uint8)
-    out = [np.zeros(n, np.int64) for _ in range(6)]
-    for s0 in range(0, h, step):
+
+    def strip(s0: int) -> list[NDArray[np.int64]] | None:
         s1 = min(h, s0 + step)
         w0, w1 = max(0, s0 - halo), min(h, s1 + halo)
         ok = None if evidence_ok is None else evidence_ok[w0:w1]
@@ -455,18 +457,31 @@ def _evidence_counts(
         masks = (okr & ~flat[inner], okr & ~core[inner], line[inner], graded[inner], rim[inner])
         if per_strip:
             inv = inverse[s0 * w : s1 * w]
-            for bit, mask in enumerate(masks):
-                out[bit] += np.bincount(inv[mask.reshape(-1)], minlength=n)
-            out[5] += np.bincount(inv if ok is None else inv[okr.reshape(-1)], minlength=n)
-            continue
+            counts = [np.bincount(inv[mask.reshape(-1)], minlength=n) for mask in masks]
+            counts.append(np.bincount(inv if ok is None else inv[okr.reshape(-1)], minlength=n))
+            return counts
         f = flags[s0 * w : s1 * w].reshape(s1 - s0, w)
         for bit, mask in enumerate(masks + (okr,)):
             f |= mask.view(np.uint8) << np.uint8(bit)
-    for c0 in range(0, flags.size, _COUNT_CHUNK):
-        part = flags[c0 : c0 + _COUNT_CHUNK]
-        inv = inverse[c0 : c0 + _COUNT_CHUNK]
-        for bit in range(6):
-            out[bit] += np.bincount(inv[(part & np.uint8(1 << bit)) != 0], minlength=n)
+        return None
+
+    def count_bit(bit: int) -> NDArray[np.int64]:
+        total = np.zeros(n, np.int64)
+        for c0 in range(0, flags.size, _COUNT_CHUNK):
+            part = flags[c0 : c0 + _COUNT_CHUNK]
+            total += np.bincount(inverse[c0 : c0 + _COUNT_CHUNK][(part & np.uint8(1 << bit)) != 0], minlength=n)
+        return total
+
+    # Strips are independent (each writes its own rows of flags), and numpy
+    # releases the GIL inside its array operations: two threads share them.
+    out = [np.zeros(n, np.int64) for _ in range(6)]
+    with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
+        for counts in pool.map(strip, range(0, h, step)):
+            if counts is not None:
+                for total, c in zip(out, counts):
+                    total += c
+        if not per_strip:
+            out = list(pool.map(count_bit, range(6)))
     counted = out[5]
     # Flat and core pixels are the rule in a chart: count the exceptions.
     return counted - out[0], counted - out[1], out[2], out[3], out[4]
