@@ -223,7 +223,8 @@ _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noi
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
-_EVIDENCE_THREADS = 2  # worker threads over the strips (tuned on two cores)
+_EVIDENCE_THREADS = 2  # worker threads over strips and colour chunks (tuned on two cores)
+_PAIRS_PER_STEP = 1 << 20  # colour x palette pairs per step of the nearest-colour search
 _SPARSE_SHARE = 0.2  # colour changes between neighbours per pixel above which evidence is computed densely
 # Two colours within d ΔE00 are within d * (_DE76_BASE + _DE76_PER_CHROMA * (C1 + C2))
 # ΔE*ab (C = C*ab), so the noise test skips pairs farther apart. Derivation from
@@ -888,8 +889,10 @@ def _nearest(
     idx = np.empty(n, np.int64)
     dist = np.empty(n)
     c_b = np.hypot(lab_b[:, 1], lab_b[:, 2])
-    for s in range(0, n, _CHUNK):
-        part = lab_a[s : s + _CHUNK]
+    chunk = max(_CHUNK, _PAIRS_PER_STEP // k)
+
+    def run(s: int) -> None:
+        part = lab_a[s : s + chunk]
         dab = delta_e_1976(part[:, None, :], lab_b[None, :, :])
         if within is None:
             sel = slice(None)
@@ -902,12 +905,19 @@ def _nearest(
         d00 = delta_e_2000(part[:, None, :], lab_b[top])
         best = np.argmin(d00, axis=1)
         rows = np.arange(part.shape[0])
-        i_part = np.full(min(n, s + _CHUNK) - s, -1, np.int64)
+        i_part = np.full(min(n, s + chunk) - s, -1, np.int64)
         d_part = np.full(i_part.size, np.inf)
         i_part[sel] = top[rows, best]
         d_part[sel] = d00[rows, best]
-        idx[s : s + _CHUNK] = i_part
-        dist[s : s + _CHUNK] = d_part
+        idx[s : s + chunk] = i_part
+        dist[s : s + chunk] = d_part
+
+    starts = range(0, n, chunk)
+    if len(starts) > 1:
+        with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
+            list(pool.map(run, starts))
+    elif n:
+        run(0)
     return idx, dist
 
 
