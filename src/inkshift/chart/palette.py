@@ -833,11 +833,11 @@ def _refine(colors: NDArray[np.uint8], ev: NDArray[np.int64], rep: NDArray[np.ui
     # centre, and the centre moves by at most REFINE_CODES per step.
     reach = (_REFINE_STEPS + 1) * REFINE_CODES
     has = np.flatnonzero(ev > 0)
-    has = has[np.abs(colors[has].astype(np.int16) - rep.astype(np.int16)).max(axis=1) <= reach]
+    has = has[_code_distance(colors[has], rep) <= reach]
     cols = colors[has].astype(np.int16)
     w = ev[has]
     for _ in range(_REFINE_STEPS):
-        near = np.abs(cols - rep.astype(np.int16)).max(axis=1) <= REFINE_CODES
+        near = _code_distance(cols, rep) <= REFINE_CODES
         if not near.any():
             break
         new = _weighted_median(cols[near].astype(np.uint8), w[near])
@@ -851,13 +851,25 @@ def _same(
     colors: NDArray[np.uint8], lab: NDArray[np.float64], color: NDArray[np.uint8], lab1: NDArray[np.float64]
 ) -> NDArray[np.bool_]:
     """True where ``colors`` are within the noise radius of ``color`` (codes or ΔE00)."""
-    codes = np.abs(colors.astype(np.int16) - color.astype(np.int16)).max(axis=1)
+    codes = _code_distance(colors, color)
     out = codes <= NOISE_CODES
     # ΔE00 only where it can matter: within 1 ΔE00 of each other, two 8-bit
     # sRGB colours are never more than about 30 codes apart.
     maybe = np.flatnonzero(~out & (codes <= _DE_PREFILTER_CODES))
     out[maybe] = delta_e_2000(lab[maybe], lab1) <= NOISE_DELTA_E
     return out
+
+
+def _code_distance(colors: NDArray[np.integer], color: NDArray[np.integer]) -> NDArray[np.int16]:
+    """Largest-channel code distance of each of ``colors`` (M, C) to ``color`` (C,).
+
+    Column by column: faster than a reduction over the short channel axis.
+    """
+    out: NDArray[np.int16] | None = None
+    for ch in range(colors.shape[1]):
+        d = np.abs(colors[:, ch].astype(np.int16) - np.int16(color[ch]))
+        out = d if out is None else np.maximum(out, d, out=out)
+    return out if out is not None else np.zeros(colors.shape[0], np.int16)
 
 
 def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> NDArray[np.uint8]:
