@@ -94,8 +94,8 @@ tables' interpolation noise. Common practice."""
 
 DEFAULT_STRIP_STEPS = 9
 """Steps sampled from a legend strip when none is given. Project choice: classed
-legends of maps and charts mostly have 3 to 9 classes (from memory: the
-ColorBrewer sequential schemes come in 3 to 9 classes); a continuous colour bar
+legends of maps and charts mostly have 3 to 9 classes (common practice in
+cartography, from memory); a continuous colour bar
 should be sampled with --steps set to the classes the reader is meant to tell apart."""
 
 RAMP_KINDS = ("sequential", "diverging")
