@@ -241,7 +241,7 @@ _ALL_PAIRS_UP_TO = 16  # palettes up to this size: every pair is tried as a blen
 _PARENTS = 8  # larger palettes: pairs among this many nearest colours (Euclidean, codes)
 
 
-_Group = tuple[NDArray[np.uint8], int, NDArray[np.bool_]]  # (colour, evidence, member mask)
+_Group = tuple[NDArray[np.uint8], int, NDArray[np.intp]]  # (colour, evidence, member indices)
 _LabFn = Callable[[NDArray[np.uint8]], NDArray[np.float64]]
 
 
@@ -349,7 +349,7 @@ def extract_palette(
     cand_strength = [float(g[1]) for g in fills]
     members_taken = np.zeros(n, bool)
     for g in fills:
-        members_taken |= g[2]
+        members_taken[g[2]] = True
 
     # Step 3: lines, then strokes, among colours not already explained by a fill.
     near_fill = np.zeros(n, bool)
@@ -364,7 +364,7 @@ def extract_palette(
         cand_colors.append(col)
         cand_kind.append("line")
         cand_strength.append(float(strength))
-        free &= ~members
+        free[members] = False
     strokes = _group(u.colors, ulab, core_n, free, MIN_CORE_PIXELS)
     for col, strength, _members in strokes:
         cand_colors.append(col)
@@ -795,7 +795,6 @@ def _group(
     which bounds the work on images with a million colours; a chart's
     evidence sits in far fewer.
     """
-    n = colors.shape[0]
     pool = np.flatnonzero(free & (evidence > 0))
     if pool.size > _MAX_GROUP_COLORS:
         pool = pool[np.argpartition(-evidence[pool], _MAX_GROUP_COLORS)[:_MAX_GROUP_COLORS]]
@@ -812,8 +811,9 @@ def _group(
         total = int(ev[members_idx].sum())
         if total < minimum:
             continue
-        members = np.zeros(n, bool)
-        members[pool[members_idx]] = True
+        # Indices, not an n-long mask: a photograph can yield MAX_COLORS groups
+        # over millions of colours.
+        members = pool[members_idx]
         # Re-centre among the colours no stronger group has claimed.
         claimable = open_.copy()
         claimable[members_idx] = True
