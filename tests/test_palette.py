@@ -11,6 +11,7 @@ covers.
 from __future__ import annotations
 
 import io
+from pathlib import Path
 
 import colour
 import numpy as np
@@ -246,3 +247,21 @@ def test_shipped_samples_give_exactly_their_drawn_colours(name):
     pal = extract_palette(pixels, srgb_to_lab)
     assert {tuple(int(v) for v in c) for c in pal.colors} == drawn
     assert tuple(pal.colors[pal.is_background][0]) == ds.PAPER
+
+
+@pytest.mark.parametrize("name", ["ferry_ridership.png", "fare_mix.png"])
+@pytest.mark.parametrize("jpeg", [False, True])
+def test_sparse_evidence_equals_dense_evidence(name, jpeg, tmp_path):
+    # The sparse path (pixels near a colour change only) must give the same
+    # masks as the whole-array path it replaces for chart-like images.
+    from inkshift.chart.palette import _pixel_evidence, _pixel_evidence_dense
+
+    img = Image.open(Path(__file__).resolve().parents[1] / "samples" / name).convert("RGB")
+    if jpeg:
+        img.save(tmp_path / "s.jpg", quality=85)
+        img = Image.open(tmp_path / "s.jpg").convert("RGB")
+    pixels = np.asarray(img)[:300, :400].copy()
+    sparse = _pixel_evidence(pixels, None)
+    dense = _pixel_evidence_dense(pixels, None)
+    for a, b in zip(sparse, dense):
+        np.testing.assert_array_equal(a, b)

@@ -102,3 +102,16 @@ def test_rejects_wrong_input():
 )
 def test_property_equals_np_unique(pixels):
     _check(pixels)
+
+
+def test_expand_by_runs_equals_the_plain_gather():
+    from inkshift.chart.unique import pixel_runs
+
+    img = np.zeros((40, 60, 3), np.uint8)
+    img[5:30, 10:50] = (200, 30, 30)
+    img[:, 55:] = (0, 0, 255)
+    u = unique_colors(img)
+    runs = pixel_runs(u.inverse)
+    assert runs is not None
+    values = np.arange(len(u), dtype=np.float32) * 1.5
+    np.testing.assert_array_equal(expand(values, u.inverse, img.shape[:2], runs=runs), expand(values, u.inverse, img.shape[:2]))

@@ -10,7 +10,6 @@ report.json atomically.
 from __future__ import annotations
 
 import json
-from concurrent.futures import Future, ThreadPoolExecutor
 from dataclasses import replace
 from itertools import combinations
 from pathlib import Path
@@ -26,7 +25,7 @@ from inkshift.chart.palette import Palette, extract_palette
 from inkshift.chart.unique import expand, pixel_runs, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
-from inkshift.files import ensure_writable_dir, save_image_atomic, write_text_atomic
+from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
@@ -385,24 +384,18 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
 
     if report.maps is None:
         raise InputError("the report has no pixel maps (check(..., keep_maps=False)); nothing to draw")
-    out, created = ensure_writable_dir(out_dir)
-    paths = {key: out / name for key, name in OUTPUT_FILES.items()}
-    written: list[Path] = []
     # PNG encoding releases the GIL, so the full-size pictures are written in
     # worker threads while the next one is drawn (24 MP chart: the three writes
     # overlap instead of adding up, about 1 s less on two cores).
-    pool = ThreadPoolExecutor(max_workers=2)
-    saves: list[Future[Path]] = []
-    try:
+    with output_folder(out_dir, workers=2) as out:
+        paths = {key: out.path / name for key, name in OUTPUT_FILES.items()}
         maps = report.maps
         img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
-        saves.append(pool.submit(save_image_atomic, img, paths["heatmap"], compress_level=FULL_SIZE_PNG_LEVEL))
+        out.image(OUTPUT_FILES["heatmap"], img, background=True, compress_level=FULL_SIZE_PNG_LEVEL)
         del img
         sim = Image.fromarray(maps.print_rgb, mode="RGB")
-        saves.append(
-            pool.submit(
-                save_image_atomic, sim, paths["print"], icc_profile=srgb_profile_bytes(), compress_level=FULL_SIZE_PNG_LEVEL
-            )
+        out.image(
+            OUTPUT_FILES["print"], sim, background=True, icc_profile=srgb_profile_bytes(), compress_level=FULL_SIZE_PNG_LEVEL
         )
         del sim
         swatches = [
@@ -416,31 +409,11 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
             for c in report.colors
         ]
         pair = side_by_side(maps.screen_rgb, maps.print_rgb, swatches)
-        saves.append(pool.submit(save_image_atomic, pair, paths["side_by_side"], icc_profile=srgb_profile_bytes()))
+        out.image(OUTPUT_FILES["side_by_side"], pair, background=True, icc_profile=srgb_profile_bytes())
         del pair
-        for done in saves:
-            written.append(done.result())
+        out.wait()
         report.outputs = {k: str(p) for k, p in paths.items()}
-        written.append(write_text_atomic(paths["report"], json.dumps(report.to_dict(), indent=2) + "\n"))
-    except BaseException:
-        report.outputs = {}
-        for pending in saves:  # wait for every write, so that none lands after the clean-up
-            try:
-                path = pending.result()
-            except BaseException:
-                continue
-            if path not in written:
-                written.append(path)
-        for p in written:
-            p.unlink(missing_ok=True)
-        if created:
-            try:
-                out.rmdir()
-            except OSError:
-                pass
-        raise
-    finally:
-        pool.shutdown(wait=True)
+        out.text(OUTPUT_FILES["report"], json.dumps(report.to_dict(), indent=2) + "\n")
     return paths
 
 

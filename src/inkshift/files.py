@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import os
 import tempfile
+from concurrent.futures import Future, ThreadPoolExecutor
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Iterator
@@ -98,14 +99,24 @@ def _remove_empty(path: Path) -> None:
 
 
 class OutputFolder:
-    """A folder that a command writes its files into, remembering what it wrote."""
+    """A folder that a command writes its files into, remembering what it wrote.
 
-    def __init__(self, path: Path) -> None:
+    With ``workers`` > 0, :meth:`image` can hand a picture to a worker thread
+    (``background=True``): PNG encoding releases the GIL, so the next picture
+    can be drawn while the last one is written.
+    """
+
+    def __init__(self, path: Path, workers: int = 0) -> None:
         self.path = path
         self.written: list[Path] = []
+        self._pool = ThreadPoolExecutor(max_workers=workers) if workers > 0 else None
+        self._pending: list[Future[Path]] = []
 
-    def image(self, name: str, image: Image.Image, **params: object) -> Path:
+    def image(self, name: str, image: Image.Image, *, background: bool = False, **params: object) -> Path:
         """Save a Pillow image as PNG under ``name`` atomically and return its path."""
+        if background and self._pool is not None:
+            self._pending.append(self._pool.submit(save_image_atomic, image, self.path / name, **params))
+            return self.path / name
         path = save_image_atomic(image, self.path / name, **params)
         self.written.append(path)
         return path
@@ -116,22 +127,47 @@ class OutputFolder:
         self.written.append(path)
         return path
 
+    def wait(self) -> None:
+        """Wait for every background write; raise the first failure after all have ended."""
+        pending, self._pending = self._pending, []
+        failure: BaseException | None = None
+        for job in pending:
+            try:
+                self.written.append(job.result())
+            except BaseException as exc:  # noqa: BLE001 - re-raised below once all writes ended
+                failure = failure or exc
+        if failure is not None:
+            raise failure
+
+    def close(self) -> None:
+        """Stop the worker threads (after waiting for them)."""
+        if self._pool is not None:
+            self._pool.shutdown(wait=True)
+
 
 @contextmanager
-def output_folder(path: str | Path) -> Iterator[OutputFolder]:
+def output_folder(path: str | Path, *, workers: int = 0) -> Iterator[OutputFolder]:
     """Yield an :class:`OutputFolder` for ``path``; on any failure remove what it wrote.
 
-    Files already renamed into place by this block are deleted again, and the
-    folder itself is removed if this call created it, so a failed command
-    leaves nothing behind.
+    Background writes are waited for before the block counts as done. Files
+    already renamed into place are deleted again on failure, and the folder
+    itself is removed if this call created it, so a failed command leaves
+    nothing behind.
     """
     out, created = ensure_writable_dir(path)
-    folder = OutputFolder(out)
+    folder = OutputFolder(out, workers)
     try:
         yield folder
+        folder.wait()
     except BaseException:
+        try:
+            folder.wait()  # let every write end, so that none lands after the clean-up
+        except BaseException:  # noqa: BLE001 - the first failure is the one raised
+            pass
         for written in folder.written:
             written.unlink(missing_ok=True)
         if created:
             _remove_empty(out)
         raise
+    finally:
+        folder.close()
