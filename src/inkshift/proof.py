@@ -33,7 +33,7 @@ from inkshift.icc.evaluate import device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
 
-__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_percent", "PILLOW_MODES", "check_output_profile"]
+__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_percent", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
 
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
@@ -103,6 +103,29 @@ def ink_percent(profile: Profile, device: NDArray[np.uint8]) -> NDArray[np.float
     return percent
 
 
+def print_view(intent: Intent, paper: bool = False) -> Intent:
+    """Return how print colours are measured: ICC-absolute on the paper, else media-relative.
+
+    The paper view is asked for with ``paper`` and implied by the absolute
+    colorimetric intent (see the module notes).
+    """
+    return Intent.ABSOLUTE if (paper or intent is Intent.ABSOLUTE) else Intent.RELATIVE
+
+
+def print_side(
+    screen_lab: NDArray[np.float64], device: NDArray[np.uint8], output: Profile, view: Intent
+) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], NDArray[np.uint8]]:
+    """Return (print Lab, ΔE00 from screen, round-trip ΔE00, print sRGB) for separated colours.
+
+    ``device`` is the 8-bit separation of colours whose screen CIELAB is
+    ``screen_lab``. The round trip is relative colorimetric, Lab -> B2A1 ->
+    A2B1 through the float evaluator, whatever the view.
+    """
+    prt = device_to_lab(output, np.asarray(device) / 255.0, view)
+    reached = device_to_lab(output, lab_to_device(output, screen_lab, Intent.RELATIVE), Intent.RELATIVE)
+    return prt, delta_e_2000(screen_lab, prt), delta_e_2000(screen_lab, reached), lab_to_srgb8(prt)
+
+
 def check_output_profile(profile: Profile) -> None:
     """Raise :class:`ProfileError` unless ``profile`` can serve as a print output profile."""
     if profile.device_class != "prtr":
@@ -157,7 +180,7 @@ def proof_colors(
         # One LittleCMS pass over all colours (building the transform costs more
         # than a chunk); its 8-bit output is compact.
         device = transform_colors(colors, source, output, in_mode, out_mode, intent, bpc)
-    view = Intent.ABSOLUTE if (paper or intent is Intent.ABSOLUTE) else Intent.RELATIVE
+    view = print_view(intent, paper)
     n = colors.shape[0]
     screen_lab = np.empty((n, 3))
     print_lab = np.empty((n, 3))
@@ -165,17 +188,11 @@ def proof_colors(
     roundtrip = np.empty(n)
     print_rgb = np.empty((n, 3), np.uint8)
 
-
     def run(s: int) -> None:
         part = slice(s, min(n, s + _PROOF_CHUNK))
         scr = device_to_lab(source, colors[part] / 255.0, Intent.RELATIVE)
-        prt = device_to_lab(output, device[part] / 255.0, view)
         screen_lab[part] = scr
-        print_lab[part] = prt
-        delta_e[part] = delta_e_2000(scr, prt)
-        reached = device_to_lab(output, lab_to_device(output, scr, Intent.RELATIVE), Intent.RELATIVE)
-        roundtrip[part] = delta_e_2000(scr, reached)
-        print_rgb[part] = lab_to_srgb8(prt)
+        print_lab[part], delta_e[part], roundtrip[part], print_rgb[part] = print_side(scr, device[part], output, view)
 
     # Each colour is computed on its own, so chunks change nothing but the size
     # of the float temporaries (the evaluators make several per colour). numpy

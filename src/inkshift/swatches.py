@@ -63,7 +63,7 @@ from inkshift.icc.cms import lab_profile, srgb_profile_bytes, transform_colors
 from inkshift.icc.evaluate import device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import PILLOW_MODES, ColorProof, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.proof import PILLOW_MODES, ColorProof, lab_to_srgb8, print_side, print_view, proof_colors, srgb_profile
 from inkshift.report.console import INTENT_WORDS, format_table
 from inkshift.report.model import ProfileInfo, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
@@ -270,11 +270,6 @@ def _lab_to_pillow8(lab: NDArray[np.float64]) -> NDArray[np.uint8]:
     return codes
 
 
-def _print_view(intent: Intent) -> Intent:
-    # As proof_colors without paper=True: media-relative unless the intent is absolute.
-    return Intent.ABSOLUTE if intent is Intent.ABSOLUTE else Intent.RELATIVE
-
-
 def _roundtrip(output: Profile, lab: NDArray[np.float64], view: Intent = Intent.RELATIVE) -> NDArray[np.float64]:
     """Lab -> B2A1 -> A2B1 through ``output`` (float): the printable colour nearest ``lab``.
 
@@ -326,16 +321,15 @@ def _proof_lab(
     device = transform_colors(
         _lab_to_pillow8(lab), lab_profile(), output, "LAB", PILLOW_MODES[output.color_space], intent, bpc
     )
-    print_lab = device_to_lab(output, device / 255.0, _print_view(intent))
-    roundtrip = delta_e_2000(lab, _roundtrip(output, lab))
+    print_lab, delta_e, roundtrip, print_rgb = print_side(lab, device, output, print_view(intent))
     return ColorProof(
         screen_lab=lab,
         device=device,
         print_lab=print_lab,
-        delta_e=delta_e_2000(lab, print_lab),
+        delta_e=delta_e,
         out_of_gamut=roundtrip > out_of_gamut_delta_e,
         roundtrip_delta_e=roundtrip,
-        print_rgb=lab_to_srgb8(print_lab),
+        print_rgb=print_rgb,
     )
 
 
@@ -344,7 +338,7 @@ def _print_of_srgb(
 ) -> tuple[NDArray[np.uint8], NDArray[np.float64]]:
     """Return (separation, print CIELAB) of 8-bit sRGB colours, as ``proof_colors`` makes them."""
     device = transform_colors(rgb, srgb_profile_bytes(), output, "RGB", PILLOW_MODES[output.color_space], intent, bpc)
-    return device, device_to_lab(output, device / 255.0, _print_view(intent))
+    return device, device_to_lab(output, device / 255.0, print_view(intent))
 
 
 def _screen_lab(rgb: NDArray[np.integer]) -> NDArray[np.float64]:
@@ -523,7 +517,7 @@ def check_swatches(
             out_of_gamut[mask] = proof.out_of_gamut
             print_rgb[mask] = proof.print_rgb
 
-        printable = printable_colors(output, screen_lab, _print_view(intent))
+        printable = printable_colors(output, screen_lab, print_view(intent))
         printable_de = delta_e_2000(screen_lab, printable)
         near_rgb, near_device, near_de = nearest_printable(printable, output, intent, bpc)
         for k, c in enumerate(colors):
