@@ -43,7 +43,7 @@ from inkshift.report.model import (
     hex_rgb,
     rgb_hex,
 )
-from inkshift.shipped import DEFAULT_PROFILE, profiles_dir, resolve_profile
+from inkshift.shipped import DEFAULT_PROFILE, profiles_dir, resolve_profile, shipped_names
 from inkshift.thresholds import Thresholds
 
 __all__ = [
@@ -51,6 +51,8 @@ __all__ = [
     "open_output_profile",
     "write_check_outputs",
     "weighted_summary",
+    "weighted_percentile",
+    "shipped_in_use",
     "image_source",
     "composite_on_white",
     "pair_verdicts",
@@ -142,18 +144,34 @@ def composite_on_white(pixels: NDArray[np.uint8], alpha: NDArray[np.uint8] | Non
     return np.rint(mixed).astype(np.uint8), [note]
 
 
+def shipped_in_use(outputs: list[ProfileInfo], gray: Any = None) -> list[str]:
+    """Return the short names of the shipped profiles a result used (outputs, then the gray one)."""
+    names = [info.name for info in outputs if info.shipped]
+    if gray is not None and gray.gray_profile in shipped_names():
+        names.append(gray.gray_profile)
+    return names
+
+
+def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], share: float) -> float:
+    """Return the smallest value with at least ``share`` of the pixels at or below it.
+
+    ``values`` are per colour and ``counts`` their pixels, so this is the
+    per-pixel percentile without expanding to pixels.
+    """
+    counts = np.asarray(counts, dtype=np.float64)
+    # Any sort will do: equal values have the same percentile whatever their order.
+    order = np.argsort(values)
+    cum = np.cumsum(counts[order])
+    return float(values[order][np.searchsorted(cum, share * counts.sum(), side="left")])
+
+
 def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.int64]) -> Summary:
     """Return per-pixel statistics from per-colour values weighted by pixel counts."""
     counts = np.asarray(counts, dtype=np.float64)
     total = counts.sum()
-    # Any sort will do: equal values have the same p95 whatever their order.
-    order = np.argsort(delta_e)
-    cum = np.cumsum(counts[order])
-    # p95 as the smallest value with at least 95 % of the pixels at or below it.
-    p95 = float(delta_e[order][np.searchsorted(cum, 0.95 * total, side="left")])
     return Summary(
         delta_e_mean=float(np.dot(delta_e, counts) / total),
-        delta_e_p95=p95,
+        delta_e_p95=weighted_percentile(delta_e, counts, 0.95),
         delta_e_max=float(delta_e.max()),
         out_of_gamut_share=float(counts[out_of_gamut].sum() / total),
     )
@@ -219,7 +237,7 @@ def _palette_colors(
                 delta_e=float(proof.delta_e[k]),
                 out_of_gamut=bool(proof.out_of_gamut[k]),
                 ink=ink,
-                coverage=sum(ink.values()) if output.color_space != "RGB" else float("nan"),
+                coverage=sum(ink.values()) if output.color_space != "RGB" else None,
                 print_hex=rgb_hex(proof.print_rgb[k]),
                 verdicts=tuple(verdicts),
             )
@@ -240,6 +258,7 @@ def check(
     gray_profile: str | Path | Profile | None = GRAY_PROFILE,
     gray_delta_l: float = GRAY_MERGE_DELTA_L,
     vision_severity: float | None = 1.0,
+    reuse: dict[bytes, Any] | None = None,
 ) -> CheckReport:
     """Soft-proof a chart image on an output profile and judge its palette.
 
@@ -267,6 +286,10 @@ def check(
     vision_severity
         Severity (0..1) of the simulated colour-vision deficiencies (None
         skips the check).
+    reuse
+        A dict shared by calls on the same chart (:func:`inkshift.compare.compare`
+        passes one): the unique colours and the palette depend only on the
+        screen side, so they are computed once per source profile and reused.
     """
     intent = parse_intent(intent)
     output, profile_info = open_output_profile(profile)
@@ -277,7 +300,8 @@ def check(
     pixels, source, source_name, assumed, notes = image_source(chart, output)
     pixels, composite_notes = composite_on_white(pixels, chart.alpha, chart.space)
 
-    uniq = unique_colors(pixels)
+    screen_side = reuse.get(source.data) if reuse is not None else None
+    uniq = unique_colors(pixels) if screen_side is None else screen_side[0]
     proof = proof_colors(
         uniq.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
     )
@@ -286,7 +310,12 @@ def check(
     def screen_lab_of(colors: NDArray[np.uint8]) -> NDArray[np.float64]:
         return device_to_lab(source, np.asarray(colors) / 255.0, Intent.RELATIVE)
 
-    palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab, blends=False)
+    if screen_side is None:
+        palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab, blends=False)
+        if reuse is not None:
+            reuse[source.data] = (uniq, palette)
+    else:
+        palette = screen_side[1]
     pal_proof = proof_colors(
         palette.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
     )
@@ -353,7 +382,7 @@ def check(
         gray=gray,
         vision=vision,
         cautions=cautions_for(
-            shipped_profile=profile_info.name if profile_info.shipped else None,
+            shipped_profile=shipped_in_use([profile_info], gray),
             vision=vision is not None,
             assumed_srgb=assumed and chart.space != "CMYK",
         ),

@@ -23,7 +23,7 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import load_chart
 from inkshift.chart.unique import expand
-from inkshift.check import check
+from inkshift.check import check, shipped_in_use, weighted_percentile
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import InputError
 from inkshift.files import output_folder
@@ -201,10 +201,11 @@ def compare(
         raise InputError("the same output profile was given twice: " + ", ".join(str(p) for p in profiles))
     chart = load_chart(image, **({} if max_pixels is None else {"max_pixels": max_pixels}))
     outcomes: list[ProfileOutcome] = []
+    screen_side: dict[bytes, Any] = {}  # unique colours and palette, computed once for all profiles
     for spec in profiles:
         rep = check(
             chart, spec, intent, bpc=bpc, paper=paper, thresholds=thresholds, keep_maps=False,
-            gray_profile=gray_profile, gray_delta_l=gray_delta_l, vision_severity=vision_severity,
+            gray_profile=gray_profile, gray_delta_l=gray_delta_l, vision_severity=vision_severity, reuse=screen_side,
         )
         outcomes.append(
             ProfileOutcome(
@@ -226,9 +227,7 @@ def compare(
     differences = []
     for a, b in combinations(outcomes, 2):
         d = delta_e_2000(a.check.proof.print_lab, b.check.proof.print_lab)
-        order = np.argsort(d, kind="stable")
-        cum = np.cumsum(counts[order])
-        p95 = float(d[order][np.searchsorted(cum, 0.95 * counts.sum())])
+        p95 = weighted_percentile(d, counts, 0.95)
         differences.append(
             PrintDifference(a.name, b.name, float(np.dot(d, counts) / counts.sum()), p95, float(d.max()), d)
         )
@@ -244,7 +243,7 @@ def compare(
         best=ranked[0].name,
         verdict=_verdict(ranked),
         cautions=cautions_for(
-            shipped_profile=[o.name for o in outcomes if o.shipped],
+            shipped_profile=shipped_in_use([o.check.output_profile for o in outcomes], first.gray),
             vision=vision_severity is not None,
             assumed_srgb=first.image.profile_assumed and first.image.color_space != "CMYK",
         ),

@@ -32,6 +32,7 @@ from inkshift.icc.cms import srgb_profile_bytes, transform_colors
 from inkshift.icc.evaluate import device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
+from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
 
 __all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_percent", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
 
@@ -146,7 +147,7 @@ def proof_colors(
     intent: Intent = Intent.RELATIVE,
     bpc: bool = True,
     paper: bool = False,
-    out_of_gamut_delta_e: float = 2.0,
+    out_of_gamut_delta_e: float = OUT_OF_GAMUT_DELTA_E,
 ) -> ColorProof:
     """Soft-proof 8-bit ``colors`` in ``source``'s colour space on ``output``.
 

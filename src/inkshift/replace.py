@@ -796,7 +796,10 @@ def replace_colors(
     """
     for text in locks:
         parse_hex(text)
-    report = check(image, profile, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels, keep_maps=False)
+    report = check(
+        image, profile, intent, bpc=bpc, paper=paper, thresholds=thresholds, max_pixels=max_pixels,
+        keep_maps=False, gray_profile=gray_profile,
+    )
     return suggest_replacements(report, locks=locks, lock_background=lock_background, gray_profile=gray_profile)
 
 

@@ -39,6 +39,7 @@ ICC.1:2022, annex D.4 (ICC-absolute from media-relative colorimetry).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -271,8 +272,18 @@ def profile_boundary_lab(profile: Any, *, ink_limit: float | None = None, steps:
 
 
 def gamut_descriptor(profile: Any, *, ink_limit: float | None = None) -> GamutDescriptor:
-    """Return the segment-maxima descriptor of a profile's ICC-absolute gamut."""
-    return segment_maxima(profile_boundary_lab(profile, ink_limit=ink_limit))
+    """Return the segment-maxima descriptor of a profile's ICC-absolute gamut.
+
+    Descriptors are kept per profile content (a few seconds of work each;
+    volume and coverage of the same profiles are asked for repeatedly).
+    """
+    prof = _open(profile)
+    return _descriptor(prof.data, prof.source, ink_limit)
+
+
+@lru_cache(maxsize=16)
+def _descriptor(data: bytes, source: str, ink_limit: float | None) -> GamutDescriptor:
+    return segment_maxima(profile_boundary_lab(read_profile(data, name=source), ink_limit=ink_limit))
 
 
 def gamut_volume(profile: Any, *, ink_limit: float | None = None) -> float:
@@ -326,9 +337,4 @@ def gamut_summary(profile: Any) -> dict[str, float] | None:
     """
     if getattr(profile, "device_class", None) not in GAMUT_CLASSES or profile.color_space in ("LAB", "XYZ"):
         return None
-    descriptor = gamut_descriptor(profile)
-    srgb = gamut_descriptor(srgb_profile_bytes())
-    return {
-        "gamut_volume": float(descriptor.volume),
-        "srgb_coverage": float(intersection_volume(descriptor, srgb) / srgb.volume) if srgb.volume > 0 else 0.0,
-    }
+    return {"gamut_volume": gamut_volume(profile), "srgb_coverage": gamut_coverage(profile)}

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from typing import TYPE_CHECKING, Sequence
 
 from inkshift.report.model import CheckReport, PairVerdict
@@ -84,7 +83,7 @@ def format_check(report: CheckReport) -> str:
         verdict = ", ".join(c.verdicts) or "ok"
         if c.background:
             verdict += " (background)"
-        total = "" if math.isnan(c.coverage) else f"{c.coverage:.0f}%"
+        total = "" if c.coverage is None else f"{c.coverage:.0f}%"
         rows.append(
             [c.hex, f"{100 * c.share:.1f}%", f"{c.delta_e:.1f}", c.print_hex,
              *[f"{v:.0f}" for v in c.ink.values()], total, verdict]

@@ -95,7 +95,7 @@ class PaletteColor:
     delta_e: float
     out_of_gamut: bool
     ink: dict[str, float]
-    coverage: float
+    coverage: float | None  # total ink, percent; None for an RGB output profile
     print_hex: str
     verdicts: tuple[str, ...]
 
@@ -110,7 +110,7 @@ class PaletteColor:
             "delta_e": round(self.delta_e, 2),
             "out_of_gamut": self.out_of_gamut,
             "cmyk": {k: round(v, 1) for k, v in self.ink.items()},
-            "coverage": round(self.coverage, 1),
+            "coverage": None if self.coverage is None else round(self.coverage, 1),
             "print_hex": self.print_hex,
             "verdicts": list(self.verdicts),
         }
