@@ -100,6 +100,7 @@ from inkshift.chart.load import ChartImage
 from inkshift.chart.palette import BLEND, NOISE_DELTA_E, label_blends
 from inkshift.chart.unique import expand
 from inkshift.check import check, open_output_profile
+from inkshift.colorlist import parse_color
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import CVD_MERGE_DELTA_E, simulate_cvd_lab
 from inkshift.errors import InputError, ProfileError
@@ -179,12 +180,12 @@ _FIGURES = ("print", "gray", "vision")
 
 
 def parse_hex(text: str) -> NDArray[np.uint8]:
-    """Return the 8-bit sRGB triple of ``#rrggbb`` or ``rrggbb``; raise InputError otherwise."""
-    s = str(text).strip()
-    body = s[1:] if s.startswith("#") else s
-    if len(body) != 6 or any(ch not in "0123456789abcdefABCDEF" for ch in body):
-        raise InputError(f"'{text}' is not a colour written as #rrggbb")
-    return hex_rgb("#" + body.lower())
+    """Return the 8-bit sRGB triple of a locked colour (any sRGB form :func:`inkshift.colorlist.parse_color`
+    reads: ``#rrggbb``, ``rrggbb``, ``#rgb``, ``rgb()``); raise InputError otherwise."""
+    spec = parse_color(str(text))
+    if spec.rgb is None:
+        raise InputError(f"'{text}': a locked colour must be an sRGB colour such as #rrggbb")
+    return spec.rgb
 
 
 def candidate_grid(levels: int = GRID_LEVELS) -> NDArray[np.uint8]:

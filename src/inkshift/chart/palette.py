@@ -92,6 +92,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from inkshift.chart.unique import UniqueColors, pack_colors, unique_colors
 from inkshift.color.difference import delta_e_1976, delta_e_2000
+from inkshift.color.vision import srgb_to_linear
 
 __all__ = [
     "Palette",
@@ -1005,8 +1006,7 @@ def _drop_blends(
 
 def _linear(codes: NDArray[np.float64]) -> NDArray[np.float64]:
     """IEC 61966-2-1 sRGB decoding, expressed again in 0..255 so tolerances stay in codes."""
-    v = codes / 255.0
-    return 255.0 * np.where(v <= 0.04045, v / 12.92, ((v + 0.055) / 1.055) ** 2.4)
+    return 255.0 * srgb_to_linear(codes / 255.0)
 
 
 def _best_pair(
