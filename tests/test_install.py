@@ -33,8 +33,9 @@ def test_wheel_installs_and_lists_the_shipped_profiles(tmp_path):
     venv = tmp_path / "venv"
     _run([sys.executable, "-m", "venv", "--system-site-packages", "--without-pip", str(venv)], tmp_path)
     py = venv / "bin" / "python"
-    # The system pip is visible through --system-site-packages and installs into the venv.
-    _run([str(py), "-m", "pip", "install", "--no-deps", "--no-index", "-q", str(wheel)], tmp_path)
+    # The system pip is visible through --system-site-packages and installs into the venv;
+    # --ignore-installed because CI has already installed the same version system-wide.
+    _run([str(py), "-m", "pip", "install", "--no-deps", "--no-index", "--ignore-installed", "-q", str(wheel)], tmp_path)
 
     where = _run([str(py), "-c", "import inkshift, sys; print(inkshift.__file__)"], tmp_path).stdout.strip()
     assert Path(where).resolve().is_relative_to(venv.resolve()), where
