@@ -22,15 +22,23 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage, load_chart
 from inkshift.chart.palette import Palette, extract_palette
-from inkshift.chart.unique import expand, pixel_runs, unique_colors
+from inkshift.chart.unique import IndexedImage, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
 from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
-from inkshift.icc.evaluate import device_to_lab
+from inkshift.icc.evaluate import codes_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile, read_profile
-from inkshift.proof import ColorProof, check_output_profile, ink_percent, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.proof import (
+    ColorProof,
+    check_output_profile,
+    ink_percent,
+    proof_colors,
+    proof_pixels,
+    screen_srgb8,
+    srgb_profile,
+)
 from inkshift.readability import GRAY_MERGE_DELTA_L, GRAY_PROFILE, gray_check, vision_check
 from inkshift.report.model import (
     CheckReport,
@@ -218,7 +226,7 @@ def _palette_colors(
 ) -> list[PaletteColor]:
     names = INK_NAMES[output.color_space]
     inks = ink_percent(output, proof.device)
-    screen_rgb = palette.colors if source is srgb_profile() else lab_to_srgb8(proof.screen_lab)
+    screen_rgb = screen_srgb8(palette.colors, source)
     out: list[PaletteColor] = []
     for k in range(len(palette.colors)):
         ink = {n: float(v) for n, v in zip(names, inks[k])}
@@ -259,6 +267,7 @@ def check(
     gray_delta_l: float = GRAY_MERGE_DELTA_L,
     vision_severity: float | None = 1.0,
     reuse: dict[bytes, Any] | None = None,
+    keep_print_lab: bool = False,
 ) -> CheckReport:
     """Soft-proof a chart image on an output profile and judge its palette.
 
@@ -279,7 +288,8 @@ def check(
     max_pixels
         Refuse images with more pixels than this (default: the loader's limit).
     keep_maps
-        Keep the full-resolution arrays in ``report.maps`` for the pictures.
+        Keep the per-pixel maps in ``report.maps`` for the pictures (as
+        :class:`~inkshift.chart.unique.IndexedImage`, expanded band by band).
     gray_profile, gray_delta_l
         Grayscale output profile of the black-and-white check and the gray
         ΔL* under which distinct colours merge there (None skips the check).
@@ -290,6 +300,15 @@ def check(
         A dict shared by calls on the same chart (:func:`inkshift.compare.compare`
         passes one): the unique colours and the palette depend only on the
         screen side, so they are computed once per source profile and reused.
+    keep_print_lab
+        Keep each unique colour's print CIELAB in ``report.proof.print_lab``
+        (:func:`inkshift.compare.compare` maps where two prints differ with it).
+
+    Notes
+    -----
+    Memory: the pixels are needed until the palette is found; after that the
+    unique colours and each pixel's colour index stand for them, and every
+    per-pixel map is kept per colour (:class:`~inkshift.proof.PixelProof`).
     """
     intent = parse_intent(intent)
     output, profile_info = open_output_profile(profile)
@@ -300,22 +319,32 @@ def check(
     pixels, source, source_name, assumed, notes = image_source(chart, output)
     pixels, composite_notes = composite_on_white(pixels, chart.alpha, chart.space)
 
-    screen_side = reuse.get(source.data) if reuse is not None else None
-    uniq = unique_colors(pixels) if screen_side is None else screen_side[0]
-    proof = proof_colors(
-        uniq.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
+    image_info = ImageInfo(
+        path=chart.path,
+        width=chart.width,
+        height=chart.height,
+        color_space=chart.space,
+        source_profile=source_name,
+        profile_assumed=assumed,
+        notes=tuple(chart.notes) + tuple(notes) + tuple(composite_notes),
     )
-    summary = weighted_summary(proof.delta_e, proof.out_of_gamut, uniq.counts)
-
-    def screen_lab_of(colors: NDArray[np.uint8]) -> NDArray[np.float64]:
-        return device_to_lab(source, np.asarray(colors) / 255.0, Intent.RELATIVE)
-
+    screen_side = reuse.get(source.data) if reuse is not None else None
     if screen_side is None:
-        palette = extract_palette(pixels, screen_lab_of, unique=uniq, unique_lab=proof.screen_lab, blends=False)
+        uniq = unique_colors(pixels)
+        palette = extract_palette(pixels, lambda colors: codes_to_lab(source, colors), unique=uniq, blends=False)
         if reuse is not None:
             reuse[source.data] = (uniq, palette)
     else:
-        palette = screen_side[1]
+        uniq, palette = screen_side
+    # From here on the unique colours and each pixel's index stand for the
+    # pixels; this function's own copies can go (a caller may hold the image).
+    del pixels, chart
+
+    proof = proof_pixels(
+        uniq.colors, source, output, intent, bpc, paper,
+        out_of_gamut_delta_e=thresholds.out_of_gamut, keep_print_lab=keep_print_lab,
+    )
+    summary = weighted_summary(proof.delta_e, proof.out_of_gamut, uniq.counts)
     pal_proof = proof_colors(
         palette.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
     )
@@ -338,31 +367,16 @@ def check(
 
     maps = None
     if keep_maps:
-        shape = pixels.shape[:2]
-        runs = pixel_runs(uniq.inverse)
-        if source is srgb_profile():
-            screen_rgb = pixels
-        else:
-            screen_rgb = expand(lab_to_srgb8(proof.screen_lab), uniq.inverse, shape, runs)
+        shape = uniq.shape
         maps = ProofMaps(
-            screen_rgb=screen_rgb,
-            print_rgb=expand(proof.print_rgb, uniq.inverse, shape, runs),
-            delta_e=expand(proof.delta_e.astype(np.float32), uniq.inverse, shape, runs),
-            out_of_gamut=expand(proof.out_of_gamut, uniq.inverse, shape, runs),
+            screen_rgb=IndexedImage(screen_srgb8(uniq.colors, source), uniq.inverse, shape),
+            print_rgb=IndexedImage(proof.print_rgb, uniq.inverse, shape),
+            delta_e=IndexedImage(proof.delta_e, uniq.inverse, shape),
+            out_of_gamut=IndexedImage(proof.out_of_gamut, uniq.inverse, shape),
         )
-        del runs
 
-    image_info = ImageInfo(
-        path=chart.path,
-        width=chart.width,
-        height=chart.height,
-        color_space=chart.space,
-        source_profile=source_name,
-        profile_assumed=assumed,
-        notes=tuple(chart.notes) + tuple(notes) + tuple(composite_notes),
-    )
     extra: dict[str, Any] = {}
-    if chart.space == "CMYK":
+    if image_info.color_space == "CMYK":
         coverage = uniq.colors.astype(np.float64).sum(axis=1) * 100.0 / 255.0
         extra["ink_coverage"] = {
             "max": round(float(coverage.max()), 1),
@@ -384,7 +398,7 @@ def check(
         cautions=cautions_for(
             shipped_profile=shipped_in_use([profile_info], gray),
             vision=vision is not None,
-            assumed_srgb=assumed and chart.space != "CMYK",
+            assumed_srgb=assumed and image_info.color_space != "CMYK",
         ),
         extra=extra,
         maps=maps,
@@ -409,20 +423,24 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
     fails, files already renamed by this call are removed again and a folder
     this call created is removed, so no partial output is left behind.
     """
-    from inkshift.report.images import Swatch, heatmap_overlay, side_by_side
+    from inkshift.report.images import Swatch, heatmap_overlay, rgb_image, side_by_side
 
     if report.maps is None:
         raise InputError("the report has no pixel maps (check(..., keep_maps=False)); nothing to draw")
-    # PNG encoding releases the GIL, so the full-size pictures are written in
-    # worker threads while the next one is drawn (24 MP chart: the three writes
-    # overlap instead of adding up, about 1 s less on two cores).
-    with output_folder(out_dir, workers=2) as out:
+    maps = report.maps
+    # PNG encoding releases the GIL, so a full-size picture can be written in a
+    # worker thread while the next one is drawn (24 MP chart: about 1 s less on
+    # two cores). Each holds 4 bytes a pixel until written, so with millions of
+    # colours, whose per-colour arrays are already large, they are written one
+    # at a time instead.
+    pixels = maps.delta_e.shape[0] * maps.delta_e.shape[1]
+    workers = 2 if maps.delta_e.values.size * _OVERLAP_COLOR_SHARE <= pixels else 0
+    with output_folder(out_dir, workers=workers) as out:
         paths = {key: out.path / name for key, name in OUTPUT_FILES.items()}
-        maps = report.maps
         img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
         out.image(OUTPUT_FILES["heatmap"], img, background=True, compress_level=FULL_SIZE_PNG_LEVEL)
         del img
-        sim = Image.fromarray(maps.print_rgb, mode="RGB")
+        sim = rgb_image(maps.print_rgb)
         out.image(
             OUTPUT_FILES["print"], sim, background=True, icc_profile=srgb_profile_bytes(), compress_level=FULL_SIZE_PNG_LEVEL
         )
@@ -447,3 +465,5 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
 
 
 _MARKS = {"out of gamut": "OUT", "shifts": "SHIFT", "merges": "MERGE"}
+
+_OVERLAP_COLOR_SHARE = 64  # write pictures in the background while colours are at most 1/64 of the pixels

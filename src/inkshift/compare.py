@@ -206,6 +206,7 @@ def compare(
         rep = check(
             chart, spec, intent, bpc=bpc, paper=paper, thresholds=thresholds, keep_maps=False,
             gray_profile=gray_profile, gray_delta_l=gray_delta_l, vision_severity=vision_severity, reuse=screen_side,
+            keep_print_lab=True,
         )
         outcomes.append(
             ProfileOutcome(

@@ -22,6 +22,7 @@ from __future__ import annotations
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Callable
 
 import numpy as np
 from numpy.typing import NDArray
@@ -29,12 +30,12 @@ from numpy.typing import NDArray
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes, transform_colors
-from inkshift.icc.evaluate import device_to_lab, lab_to_device
+from inkshift.icc.evaluate import codes_to_lab, device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
 from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
 
-__all__ = ["ColorProof", "proof_colors", "srgb_profile", "lab_to_srgb8", "ink_percent", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
+__all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_profile", "lab_to_srgb8", "screen_srgb8", "ink_percent", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
 
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
@@ -75,6 +76,33 @@ class ColorProof:
     print_rgb: NDArray[np.uint8]
 
 
+@dataclass(frozen=True)
+class PixelProof:
+    """What a check keeps for every unique colour of an image, in compact types.
+
+    A photograph has millions of unique colours, so a check keeps only what
+    its pixel maps and statistics need (12 bytes per colour against 87 for a
+    :class:`ColorProof`); the same computation as :func:`proof_colors`.
+
+    Attributes
+    ----------
+    print_lab
+        CIELAB (D50) of the printed colour, float32 (ample for comparing
+        prints), or None when not asked for.
+    delta_e
+        CIEDE2000 between screen and print, float64 as in :class:`ColorProof`.
+    out_of_gamut
+        The round-trip flag of :class:`ColorProof`.
+    print_rgb
+        8-bit sRGB showing the printed colour on screen.
+    """
+
+    print_lab: NDArray[np.float32] | None
+    delta_e: NDArray[np.float64]
+    out_of_gamut: NDArray[np.bool_]
+    print_rgb: NDArray[np.uint8]
+
+
 @lru_cache(maxsize=1)
 def srgb_profile() -> Profile:
     """Return LittleCMS's built-in sRGB profile read by the project's reader."""
@@ -85,6 +113,20 @@ def lab_to_srgb8(lab: NDArray[np.float64]) -> NDArray[np.uint8]:
     """Return 8-bit sRGB showing CIELAB (D50) colours, clipped to the sRGB gamut."""
     rgb = lab_to_device(srgb_profile(), lab, Intent.RELATIVE)
     return np.clip(np.rint(rgb * 255.0), 0, 255).astype(np.uint8)
+
+
+def screen_srgb8(colors: NDArray[np.uint8], source: Profile) -> NDArray[np.uint8]:
+    """Return 8-bit sRGB showing 8-bit ``colors`` of ``source`` on screen (the colours themselves for sRGB).
+
+    Works in chunks, so millions of colours need no large float temporaries.
+    """
+    colors = np.asarray(colors, dtype=np.uint8)
+    if source is srgb_profile():
+        return colors
+    out = np.empty((colors.shape[0], 3), np.uint8)
+    for s in range(0, colors.shape[0], _PROOF_CHUNK):
+        out[s : s + _PROOF_CHUNK] = lab_to_srgb8(codes_to_lab(source, colors[s : s + _PROOF_CHUNK], Intent.RELATIVE))
+    return out
 
 
 def ink_percent(profile: Profile, device: NDArray[np.uint8]) -> NDArray[np.float64]:
@@ -122,7 +164,7 @@ def print_side(
     ``screen_lab``. The round trip is relative colorimetric, Lab -> B2A1 ->
     A2B1 through the float evaluator, whatever the view.
     """
-    prt = device_to_lab(output, np.asarray(device) / 255.0, view)
+    prt = codes_to_lab(output, np.asarray(device, dtype=np.uint8), view)
     reached = device_to_lab(output, lab_to_device(output, screen_lab, Intent.RELATIVE), Intent.RELATIVE)
     return prt, delta_e_2000(screen_lab, prt), delta_e_2000(screen_lab, reached), lab_to_srgb8(prt)
 
@@ -168,6 +210,76 @@ def proof_colors(
     A CMYK source whose profile is the output profile itself is proofed as it
     stands: the device values are the pixels (no separation).
     """
+    n = len(colors)
+    screen_lab = np.empty((n, 3))
+    print_lab = np.empty((n, 3))
+    delta_e = np.empty(n)
+    roundtrip = np.empty(n)
+    print_rgb = np.empty((n, 3), np.uint8)
+
+    def keep(part: slice, scr: NDArray[np.float64], side: _PrintSide) -> None:
+        screen_lab[part] = scr
+        print_lab[part], delta_e[part], roundtrip[part], print_rgb[part] = side
+
+    device = _proof_parts(colors, source, output, intent, bpc, paper, keep)
+    return ColorProof(
+        screen_lab=screen_lab,
+        device=device,
+        print_lab=print_lab,
+        delta_e=delta_e,
+        out_of_gamut=roundtrip > out_of_gamut_delta_e,
+        roundtrip_delta_e=roundtrip,
+        print_rgb=print_rgb,
+    )
+
+
+def proof_pixels(
+    colors: NDArray[np.uint8],
+    source: Profile,
+    output: Profile,
+    intent: Intent = Intent.RELATIVE,
+    bpc: bool = True,
+    paper: bool = False,
+    out_of_gamut_delta_e: float = OUT_OF_GAMUT_DELTA_E,
+    *,
+    keep_print_lab: bool = False,
+) -> PixelProof:
+    """Return the :class:`PixelProof` of ``colors``: :func:`proof_colors` keeping less.
+
+    Same parameters; ``keep_print_lab`` also keeps the print CIELAB (float32).
+    """
+    n = len(colors)
+    print_lab = np.empty((n, 3), np.float32) if keep_print_lab else None
+    delta_e = np.empty(n)
+    out_of_gamut = np.empty(n, bool)
+    print_rgb = np.empty((n, 3), np.uint8)
+
+    def keep(part: slice, scr: NDArray[np.float64], side: _PrintSide) -> None:
+        prt, delta_e[part], roundtrip, print_rgb[part] = side
+        out_of_gamut[part] = roundtrip > out_of_gamut_delta_e
+        if print_lab is not None:
+            print_lab[part] = prt
+
+    _proof_parts(colors, source, output, intent, bpc, paper, keep)
+    return PixelProof(print_lab=print_lab, delta_e=delta_e, out_of_gamut=out_of_gamut, print_rgb=print_rgb)
+
+
+_PrintSide = tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], NDArray[np.uint8]]
+
+
+def _proof_parts(
+    colors: NDArray[np.uint8],
+    source: Profile,
+    output: Profile,
+    intent: Intent,
+    bpc: bool,
+    paper: bool,
+    keep: Callable[[slice, NDArray[np.float64], _PrintSide], None],
+) -> NDArray[np.uint8]:
+    """Separate ``colors`` and hand each chunk's screen Lab and :func:`print_side` to ``keep``.
+
+    Returns the separation (8-bit device values of every colour).
+    """
     colors = np.asarray(colors, dtype=np.uint8)
     in_mode = PILLOW_MODES.get(source.color_space)
     if in_mode is None:
@@ -183,17 +295,11 @@ def proof_colors(
         device = transform_colors(colors, source, output, in_mode, out_mode, intent, bpc)
     view = print_view(intent, paper)
     n = colors.shape[0]
-    screen_lab = np.empty((n, 3))
-    print_lab = np.empty((n, 3))
-    delta_e = np.empty(n)
-    roundtrip = np.empty(n)
-    print_rgb = np.empty((n, 3), np.uint8)
 
     def run(s: int) -> None:
         part = slice(s, min(n, s + _PROOF_CHUNK))
-        scr = device_to_lab(source, colors[part] / 255.0, Intent.RELATIVE)
-        screen_lab[part] = scr
-        print_lab[part], delta_e[part], roundtrip[part], print_rgb[part] = print_side(scr, device[part], output, view)
+        scr = codes_to_lab(source, colors[part], Intent.RELATIVE)
+        keep(part, scr, print_side(scr, device[part], output, view))
 
     # Each colour is computed on its own, so chunks change nothing but the size
     # of the float temporaries (the evaluators make several per colour). numpy
@@ -206,12 +312,4 @@ def proof_colors(
     else:
         for s in starts:
             run(s)
-    return ColorProof(
-        screen_lab=screen_lab,
-        device=device,
-        print_lab=print_lab,
-        delta_e=delta_e,
-        out_of_gamut=roundtrip > out_of_gamut_delta_e,
-        roundtrip_delta_e=roundtrip,
-        print_rgb=print_rgb,
-    )
+    return device

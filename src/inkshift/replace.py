@@ -109,7 +109,7 @@ from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.proof import lab_to_srgb8, proof_colors, screen_srgb8, srgb_profile
 from inkshift.readability import CHECKED_DEFICIENCIES, GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.report.model import CheckReport, ImageInfo, ProfileInfo, hex_rgb, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
@@ -817,10 +817,7 @@ def recolor_chart(result: ReplaceReport) -> NDArray[np.uint8]:
     if rep is None or rep.unique is None or rep.palette is None:
         raise InputError("the replacement report carries no check with unique colours; use replace_colors()")
     uniq, palette = rep.unique, label_blends(rep.palette, rep.unique.colors)
-    if rep.source_profile is srgb_profile():
-        u_rgb = uniq.colors.astype(np.float64)
-    else:
-        u_rgb = lab_to_srgb8(rep.proof.screen_lab).astype(np.float64)
+    u_rgb = screen_srgb8(uniq.colors, rep.source_profile).astype(np.float64)
     old = np.array([hex_rgb(c.original_hex) for c in result.colors], np.float64).reshape(-1, 3)
     new = np.array([hex_rgb(c.replacement_hex) for c in result.colors], np.float64).reshape(-1, 3)
     changed = np.any(old != new, axis=1)

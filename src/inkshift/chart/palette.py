@@ -279,7 +279,7 @@ class Palette:
     shares: NDArray[np.float64]
     is_background: NDArray[np.bool_]
     kind: NDArray[np.str_]
-    labels: NDArray[np.int64]
+    labels: NDArray[np.int32]
     parents: NDArray[np.int64]
     mix: NDArray[np.float64]
 
@@ -327,18 +327,22 @@ def extract_palette(
     h, w, c = pixels.shape
     u = unique if unique is not None else unique_colors(pixels)
     n = len(u)
-    ulab = np.asarray(unique_lab if unique_lab is not None else lab(u.colors), dtype=np.float64)
     inverse = u.inverse
 
     if alpha is None:
         evidence_ok = None
-        totals = u.counts.astype(np.int64)
+        totals = u.counts
     else:
         a = np.asarray(alpha).reshape(-1)
         evidence_ok = (a == 255).reshape(h, w)
         totals = np.bincount(inverse[a > 0], minlength=n).astype(np.int64)
 
-    flat_n, core_n, line_n, graded_n, rim_n = _evidence_counts(pixels, evidence_ok, inverse, n)
+    flat_n, core_n, line_n, graded_n, rim_n = _evidence_counts(pixels, evidence_ok, inverse, totals)
+    # After the evidence, whose per-pixel flags are gone by now: with millions
+    # of colours (a photograph) the two are the largest arrays of this step.
+    # Lab given in float32 stays float32 (12 bytes a colour is enough for
+    # telling drawn colours apart; differences are computed in float64).
+    ulab = np.asarray(unique_lab) if unique_lab is not None else np.asarray(lab(u.colors), dtype=np.float64)
 
     # Step 2: fills.
     free = totals > 0
@@ -399,15 +403,16 @@ def extract_palette(
     colors, kinds = _drop_blends(colors, kinds, strength, lab)
 
     # Step 5: labels for every unique colour, then counts and shares.
+    del flat_n, core_n, line_n, graded_n, rim_n, free, near_fill, members_taken
     plab = np.asarray(lab(colors), dtype=np.float64)
     labels = _noise_labels(u.colors, ulab, colors, plab)
     k = colors.shape[0]
     sel = labels >= 0
     counts = np.bincount(labels[sel], weights=totals[sel], minlength=k).astype(np.int64)
     order = np.lexsort((np.arange(k), -counts))
-    remap = np.empty(k, np.int64)
+    remap = np.empty(k, np.int32)
     remap[order] = np.arange(k)
-    labels = np.where(labels >= 0, remap[np.maximum(labels, 0)], labels)
+    labels[sel] = remap[labels[sel]]
     colors, plab, counts, kinds = colors[order], plab[order], counts[order], kinds[order]
     total = int(totals.sum())
     shares = counts / total if total else np.zeros(k)
@@ -422,16 +427,20 @@ def extract_palette(
         is_background=is_background,
         kind=kinds,
         labels=labels,
-        parents=np.full((labels.size, 2), -1, np.int64),
-        mix=np.full(labels.size, np.nan),
+        # Read-only views of one value until label_blends fills them: with
+        # millions of colours, real arrays would take 24 bytes a colour.
+        parents=np.broadcast_to(np.int64(-1), (labels.size, 2)),
+        mix=np.broadcast_to(np.float64(np.nan), (labels.size,)),
     )
     return label_blends(palette, u.colors) if blends else palette
 
 
 def _evidence_counts(
-    pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None, inverse: NDArray[np.int32], n: int
-) -> tuple[NDArray[np.int64], ...]:
-    """Per unique colour: flat, core, line, graded and rim pixel counts.
+    pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None, inverse: NDArray[np.int32], totals: NDArray[np.int64]
+) -> tuple[NDArray[np.int32], ...]:
+    """Per unique colour: flat, core, line, graded and rim pixel counts (int32).
+
+    ``totals`` are the pixels of each colour that count (alpha above 0).
 
     Works in strips of rows with :data:`LINE_RUN` rows of overlap on each side,
     which is enough for every neighbourhood test and for deciding whether a
@@ -444,8 +453,10 @@ def _evidence_counts(
     # With many colours (a photograph), one byte of flags per pixel, counted per
     # colour at the end: a per-strip bincount would clear an array as long as
     # the colour list every time, which costs more than the tests themselves.
+    n = totals.size
     per_strip = n <= _STRIP_PIXELS  # few colours: count each strip at once, no flags
     flags = np.zeros(0 if per_strip else h * w, np.uint8)
+    n_bits = 5 if evidence_ok is None else 6  # the sixth marks pixels that give evidence
 
     def strip(s0: int) -> list[NDArray[np.int64]] | None:
         s1 = min(h, s0 + step)
@@ -456,37 +467,44 @@ def _evidence_counts(
         rim = flat & _near(~flat, HALO_REACH)
         inner = slice(s0 - w0, s1 - w0)
         okr = np.ones((s1 - s0, w), bool) if ok is None else ok[inner]
-        masks = (okr & ~flat[inner], okr & ~core[inner], line[inner], graded[inner], rim[inner])
+        masks = (okr & ~flat[inner], okr & ~core[inner], line[inner], graded[inner], rim[inner], okr)[:n_bits]
         if per_strip:
             inv = inverse[s0 * w : s1 * w]
-            counts = [np.bincount(inv[mask.reshape(-1)], minlength=n) for mask in masks]
-            counts.append(np.bincount(inv if ok is None else inv[okr.reshape(-1)], minlength=n))
-            return counts
+            return [np.bincount(inv[mask.reshape(-1)], minlength=n) for mask in masks]
         f = flags[s0 * w : s1 * w].reshape(s1 - s0, w)
-        for bit, mask in enumerate(masks + (okr,)):
+        for bit, mask in enumerate(masks):
             f |= mask.view(np.uint8) << np.uint8(bit)
         return None
 
     def count_bit(bit: int) -> NDArray[np.int64]:
+        # Gathering and counting cost grows with the pixels selected, so a bit
+        # set on most pixels (in a photograph, "not flat") is counted through
+        # its complement: every pixel gives evidence when there is no alpha.
+        m = np.uint8(1 << bit)
+        complement = evidence_ok is None and 2 * np.count_nonzero(flags & m) > flags.size
         total = np.zeros(n, np.int64)
         for c0 in range(0, flags.size, _COUNT_CHUNK):
-            part = flags[c0 : c0 + _COUNT_CHUNK]
-            total += np.bincount(inverse[c0 : c0 + _COUNT_CHUNK][(part & np.uint8(1 << bit)) != 0], minlength=n)
-        return total
+            part = flags[c0 : c0 + _COUNT_CHUNK] & m
+            pick = (part == 0) if complement else (part != 0)
+            total += np.bincount(inverse[c0 : c0 + _COUNT_CHUNK][pick], minlength=n)
+        return totals - total if complement else total
 
     # Strips are independent (each writes its own rows of flags), and numpy
     # releases the GIL inside its array operations: two threads share them.
-    out = [np.zeros(n, np.int64) for _ in range(6)]
+    out = [np.zeros(n, np.int64) for _ in range(n_bits)]
     with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
         for counts in pool.map(strip, range(0, h, step)):
             if counts is not None:
                 for total, c in zip(out, counts):
                     total += c
-        if not per_strip:
-            out = list(pool.map(count_bit, range(6)))
-    counted = out[5]
+    if not per_strip:
+        # One bit at a time: each count makes an int64 array as long as the colour list.
+        out = [count_bit(bit).astype(np.int32) for bit in range(n_bits)]
+    counted = totals if evidence_ok is None else out[5]
     # Flat and core pixels are the rule in a chart: count the exceptions.
-    return counted - out[0], counted - out[1], out[2], out[3], out[4]
+    return tuple(
+        np.asarray(c, dtype=np.int32) for c in (counted - out[0], counted - out[1], out[2], out[3], out[4])
+    )
 
 
 def _pixel_evidence(
@@ -885,7 +903,7 @@ def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> N
 
 def _nearest(
     lab_a: NDArray[np.float64], lab_b: NDArray[np.float64], within: float | None = None
-) -> tuple[NDArray[np.int64], NDArray[np.float64]]:
+) -> tuple[NDArray[np.int32], NDArray[np.float64]]:
     """Nearest of ``lab_b`` for each of ``lab_a`` by CIEDE2000.
 
     The two nearest by ΔE*ab are scored with CIEDE2000 and the better kept; this
@@ -894,18 +912,18 @@ def _nearest(
     ``lab_b`` (see ``_DE76_BASE``) are not scored: they get index -1 and
     distance inf.
     """
-    lab_a = np.asarray(lab_a, np.float64)
+    lab_a = np.asarray(lab_a)  # float32 stays float32 here; each chunk is widened below
     lab_b = np.asarray(lab_b, np.float64)
     n, k = lab_a.shape[0], lab_b.shape[0]
     if k == 0:
-        return np.full(n, -1, np.int64), np.full(n, np.inf)
-    idx = np.empty(n, np.int64)
+        return np.full(n, -1, np.int32), np.full(n, np.inf)
+    idx = np.empty(n, np.int32)
     dist = np.empty(n)
     c_b = np.hypot(lab_b[:, 1], lab_b[:, 2])
     chunk = max(_CHUNK, _PAIRS_PER_STEP // k)
 
     def run(s: int) -> None:
-        part = lab_a[s : s + chunk]
+        part = np.asarray(lab_a[s : s + chunk], np.float64)
         dab = delta_e_1976(part[:, None, :], lab_b[None, :, :])
         if within is None:
             sel = slice(None)
@@ -918,7 +936,7 @@ def _nearest(
         d00 = delta_e_2000(part[:, None, :], lab_b[top])
         best = np.argmin(d00, axis=1)
         rows = np.arange(part.shape[0])
-        i_part = np.full(min(n, s + chunk) - s, -1, np.int64)
+        i_part = np.full(min(n, s + chunk) - s, -1, np.int32)
         d_part = np.full(i_part.size, np.inf)
         i_part[sel] = top[rows, best]
         d_part[sel] = d00[rows, best]
@@ -1080,10 +1098,11 @@ def _segment(
 
 def _noise_labels(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.float64], colors: NDArray[np.uint8], plab: NDArray[np.float64]
-) -> NDArray[np.int64]:
+) -> NDArray[np.int32]:
     """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER."""
     idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E)
-    labels = np.where(dist <= NOISE_DELTA_E, idx, OTHER).astype(np.int64)
+    labels = np.where(dist <= NOISE_DELTA_E, idx, np.int32(OTHER))
+    del idx, dist
     # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).
     rest = np.flatnonzero(labels == OTHER)
     if rest.size == 0 or colors.shape[0] == 0:
@@ -1093,7 +1112,7 @@ def _noise_labels(
     levels = np.arange(256, dtype=np.int16)
     channels = [ucolors[rest, ch] for ch in range(ucolors.shape[1])]
     best = np.full(rest.size, 255, np.uint8)
-    best_j = np.full(rest.size, -1, np.int64)
+    best_j = np.full(rest.size, -1, np.int32)
     for j, pcol in enumerate(colors):
         d = None
         for ch, values in enumerate(channels):

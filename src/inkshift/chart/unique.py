@@ -34,7 +34,16 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-__all__ = ["UniqueColors", "PixelRuns", "unique_colors", "pack_colors", "pixel_runs", "expand", "MAX_TABLE_BITS"]
+__all__ = [
+    "UniqueColors",
+    "PixelRuns",
+    "IndexedImage",
+    "unique_colors",
+    "pack_colors",
+    "pixel_runs",
+    "expand",
+    "MAX_TABLE_BITS",
+]
 
 MAX_TABLE_BITS = 24
 """Largest key space (bits) ranked by a direct table: 2**24 int32 = 64 MB, the
@@ -275,3 +284,45 @@ def expand(
         for s in range(0, inverse.size, _CHUNK):
             np.take(values, inverse[s : s + _CHUNK], axis=0, out=out[s : s + _CHUNK])
     return out.reshape(tuple(shape) + values.shape[1:])
+
+
+class IndexedImage:
+    """A per-pixel map held as one value per unique colour and each pixel's colour index.
+
+    The generalisation of an indexed-colour (palette) image to any values:
+    ``image[y0:y1]`` expands only those rows, ``np.asarray(image)`` the whole
+    map. A proof keeps its maps this way, so a map costs its per-colour values
+    plus the shared index (4 bytes per pixel) until a picture is drawn band by
+    band, instead of 1-4 bytes per pixel per map.
+    """
+
+    def __init__(self, values: ArrayLike, index: ArrayLike, shape: tuple[int, int]) -> None:
+        self.values = np.asarray(values)
+        self.index = np.asarray(index).reshape(-1)
+        if self.index.size != shape[0] * shape[1]:
+            raise ValueError(f"an index of {self.index.size} pixels does not fit shape {shape}")
+        self.shape: tuple[int, ...] = tuple(shape) + self.values.shape[1:]
+
+    @property
+    def dtype(self) -> np.dtype:
+        return self.values.dtype
+
+    @property
+    def ndim(self) -> int:
+        return len(self.shape)
+
+    def __len__(self) -> int:
+        return self.shape[0]
+
+    def __getitem__(self, rows: slice) -> NDArray:
+        """Rows ``rows`` (a slice with step 1) expanded to pixels."""
+        if not isinstance(rows, slice) or rows.step not in (None, 1):
+            raise TypeError("an IndexedImage is read by row slices, image[y0:y1]")
+        y0, y1, _ = rows.indices(self.shape[0])
+        w = self.shape[1]
+        y1 = max(y0, y1)
+        return expand(self.values, self.index[y0 * w : y1 * w], (y1 - y0, w))
+
+    def __array__(self, dtype: np.dtype | None = None, copy: bool | None = None) -> NDArray:
+        out = expand(self.values, self.index, self.shape[:2])
+        return out if dtype is None else out.astype(dtype, copy=False)

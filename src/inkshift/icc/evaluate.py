@@ -21,6 +21,8 @@ colorimetry (their wtpt describes the display, not the PCS adaptation).
 
 from __future__ import annotations
 
+from weakref import WeakKeyDictionary
+
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
@@ -43,6 +45,7 @@ from inkshift.icc.read import Profile
 __all__ = [
     "device_to_xyz",
     "device_to_lab",
+    "codes_to_lab",
     "lab_to_device",
     "xyz_to_device",
     "available_tables",
@@ -107,11 +110,42 @@ def device_to_xyz(profile: Profile, device: ArrayLike, intent: Intent | str | in
 def device_to_lab(profile: Profile, device: ArrayLike, intent: Intent | str | int = Intent.RELATIVE) -> NDArray[np.float64]:
     """Return CIELAB (D50) for device values in 0..1, shape (..., channels); see :func:`device_to_xyz`."""
     intent = parse_intent(intent)
-    values, space = _device_to_pcs(profile, device, intent)
+    return _pcs_to_lab(profile, *_device_to_pcs(profile, device, intent), intent)
+
+
+def _pcs_to_lab(profile: Profile, values: NDArray[np.float64], space: str, intent: Intent) -> NDArray[np.float64]:
+    """Media-relative PCS values -> CIELAB, ICC-absolute for the absolute intent."""
     if intent is not Intent.ABSOLUTE:
         return values if space == "LAB" else xyz_to_lab(values)
     xyz = values if space == "XYZ" else lab_to_xyz(values)
     return xyz_to_lab(_to_absolute(profile, xyz, intent))
+
+
+def codes_to_lab(profile: Profile, codes: ArrayLike, intent: Intent | str | int = Intent.RELATIVE) -> NDArray[np.float64]:
+    """Return :func:`device_to_lab` of 8-bit device codes (``codes / 255``), bit for bit, faster.
+
+    The tone curves of a matrix/TRC or gray TRC profile are evaluated once at
+    the 256 codes and looked up, instead of once per colour (a parametric
+    sRGB curve costs a power function per channel and colour).
+    """
+    intent = parse_intent(intent)
+    codes = np.asarray(codes)
+    if codes.dtype != np.uint8 or codes.ndim == 0 or codes.shape[-1] != profile.channels:
+        raise InputError(f"{profile.source}: 8-bit codes need a uint8 array with a last axis of {profile.channels}")
+    if select_table(profile, "A2B", intent) is not None or not (profile.is_matrix_trc or profile.is_gray_trc):
+        return device_to_lab(profile, codes / 255.0, intent)
+    return _pcs_to_lab(profile, *_device_to_pcs(profile, codes, intent, codes=True), intent)
+
+
+_TRC_TABLES: WeakKeyDictionary[Profile, list[NDArray[np.float64]]] = WeakKeyDictionary()
+
+
+def _trc_tables(profile: Profile) -> list[NDArray[np.float64]]:
+    """Each TRC of ``profile`` evaluated at the 256 8-bit codes (cached per profile object)."""
+    tables = _TRC_TABLES.get(profile)
+    if tables is None:
+        tables = _TRC_TABLES[profile] = [eval_curve(c, np.arange(256) / 255.0) for c in profile.trcs]
+    return tables
 
 
 def lab_to_device(profile: Profile, lab: ArrayLike, intent: Intent | str | int = Intent.RELATIVE) -> NDArray[np.float64]:
@@ -193,29 +227,46 @@ def _device_out(profile: Profile, lut: Lut, v: NDArray[np.float64]) -> NDArray[n
     return v
 
 
-def _device_to_pcs(profile: Profile, device: ArrayLike, intent: Intent | str | int) -> tuple[NDArray[np.float64], str]:
-    """Return (media-relative PCS values, 'LAB' or 'XYZ') for device values."""
+def _device_to_pcs(
+    profile: Profile, device: ArrayLike, intent: Intent | str | int, codes: bool = False
+) -> tuple[NDArray[np.float64], str]:
+    """Return (media-relative PCS values, 'LAB' or 'XYZ') for device values.
+
+    With ``codes`` the values are uint8 codes (checked by the caller) and the
+    TRCs are looked up (:func:`codes_to_lab`).
+    """
     intent = parse_intent(intent)
     _check_usable(profile)
-    d = _as_colours(profile, device, profile.channels, f"{profile.color_space} device")
+    if codes:
+        d = np.asarray(device)
+        flat = d.reshape(-1, profile.channels)
+    else:
+        d = _as_colours(profile, device, profile.channels, f"{profile.color_space} device")
+        flat = np.clip(d.reshape(-1, profile.channels), 0.0, 1.0)
     lead = d.shape[:-1]
-    flat = np.clip(d.reshape(-1, profile.channels), 0.0, 1.0)
     tag = select_table(profile, "A2B", intent)
     if tag is not None:
         lut = profile.luts[tag]
         out = _decode_pcs(lut, eval_lut(lut, _device_in(profile, lut, flat)), profile.pcs)
         return out.reshape(lead + (3,)), profile.pcs
     if profile.is_matrix_trc:
-        linear = np.stack([eval_curve(c, flat[:, i]) for i, c in enumerate(profile.trcs)], axis=1)
+        linear = np.stack([_trc(profile, flat, i) for i in range(3)], axis=1)
         return (linear @ profile.colorants.T).reshape(lead + (3,)), "XYZ"
     if profile.is_gray_trc and profile.channels == 1:
-        y = eval_curve(profile.trcs[0], flat[:, 0])
+        y = _trc(profile, flat, 0)
         if profile.pcs == "LAB":
             lab = np.zeros((flat.shape[0], 3))
             lab[:, 0] = 100.0 * y
             return lab.reshape(lead + (3,)), "LAB"
         return (y[:, None] * D50_XYZ).reshape(lead + (3,)), "XYZ"
     raise ProfileError(profile.source, "no device-to-PCS transform (no A2B0/A2B1/A2B2 table and no matrix/TRC or grayTRC)")
+
+
+def _trc(profile: Profile, device: NDArray, channel: int) -> NDArray[np.float64]:
+    """TRC ``channel`` of ``profile`` at the device values: looked up for uint8 codes, else evaluated."""
+    if device.dtype == np.uint8:
+        return _trc_tables(profile)[channel].take(device[:, channel])
+    return eval_curve(profile.trcs[channel], device[:, channel])
 
 
 def _pcs_to_device(profile: Profile, pcs: NDArray[np.float64], space: str, intent: Intent) -> NDArray[np.float64]:

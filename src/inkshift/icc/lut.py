@@ -61,6 +61,17 @@ class Curve:
     function: int = 0
     params: tuple[float, ...] = ()
 
+    @property
+    def is_identity(self) -> bool:
+        """True when the curve returns its input exactly: ``"identity"``, or a
+        two-entry table 0 -> 0, 1 -> 1 (what lut16 writers put where no curve is
+        wanted; interpolating it gives back ``x`` bit for bit)."""
+        if self.kind == "identity":
+            return True
+        return self.kind == "table" and self.table is not None and len(self.table) == 2 and (
+            float(self.table[0]) == 0.0 and float(self.table[1]) == 1.0
+        )
+
 
 @dataclass(frozen=True, eq=False)
 class CurveSet:
@@ -138,7 +149,7 @@ def eval_curve(curve: Curve, x: ArrayLike) -> NDArray[np.float64]:
     (ICC.1:2022 10.6).
     """
     x = np.clip(np.asarray(x, dtype=np.float64), 0.0, 1.0)
-    if curve.kind == "identity":
+    if curve.is_identity:
         return x
     if curve.kind == "table" and curve.table is not None and len(curve.table) >= 2:
         # Interpolating between table entries in 0..1 stays in 0..1 and finite.
@@ -308,7 +319,7 @@ def eval_stages(stages: tuple[Stage, ...], x: ArrayLike, method: str = "tetrahed
     v = np.clip(np.asarray(x, dtype=np.float64), 0.0, 1.0)
     for stage in stages:
         if isinstance(stage, CurveSet):
-            if all(c.kind == "identity" for c in stage.curves):
+            if all(c.is_identity for c in stage.curves):
                 continue
             v = np.stack([eval_curve(c, v[:, i]) for i, c in enumerate(stage.curves)], axis=1)
         elif isinstance(stage, MatrixStage):

@@ -3,7 +3,8 @@
 - :func:`heatmap_overlay` and :func:`scalar_map` (in :mod:`inkshift.report.heatmap`):
   full-resolution maps in the project's heat scale with one shared legend.
 - :class:`Swatch`, :func:`side_by_side` and :func:`swatch_sheet` (in
-  :mod:`inkshift.report.sheets`): previews and labelled swatch pairs.
+  :mod:`inkshift.report.sheets`): previews and labelled swatch pairs;
+  :func:`rgb_image` turns a full-size map into a picture band by band.
 
 Each function returns a Pillow image; callers save it with
 :func:`inkshift.files.save_image_atomic`.
@@ -19,12 +20,13 @@ from inkshift.report.heatmap import (
     legend_strip,
     scalar_map,
 )
-from inkshift.report.sheets import Swatch, side_by_side, swatch_sheet
+from inkshift.report.sheets import Swatch, rgb_image, side_by_side, swatch_sheet
 
 __all__ = [
     "heatmap_overlay",
     "scalar_map",
     "legend_strip",
+    "rgb_image",
     "Swatch",
     "side_by_side",
     "swatch_sheet",

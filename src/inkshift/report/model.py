@@ -139,12 +139,19 @@ class PairVerdict:
 
 @dataclass
 class ProofMaps:
-    """Full-resolution arrays behind the pictures (not part of the JSON)."""
+    """The per-pixel maps behind the pictures (not part of the JSON).
 
-    screen_rgb: NDArray[np.uint8]
-    print_rgb: NDArray[np.uint8]
-    delta_e: NDArray[np.float32]
-    out_of_gamut: NDArray[np.bool_]
+    Each is an (H, W[, 3]) array or, as :func:`inkshift.check.check` keeps
+    them, an :class:`~inkshift.chart.unique.IndexedImage` (per-colour values
+    and the shared pixel index; ``np.asarray`` expands one whole, slicing
+    rows expands a band): screen and print sRGB (uint8), ΔE00 (float) and the
+    out-of-gamut flag (bool).
+    """
+
+    screen_rgb: Any
+    print_rgb: Any
+    delta_e: Any
+    out_of_gamut: Any
 
 
 @dataclass

@@ -21,9 +21,11 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from PIL import Image, ImageDraw, ImageFont
 
+from inkshift.chart.unique import IndexedImage
 from inkshift.errors import InputError
 
 __all__ = [
+    "rgb_image",
     "Swatch",
     "side_by_side",
     "swatch_sheet",
@@ -220,8 +222,13 @@ def _swatch_grid(swatches: Sequence[Swatch], width: int, font_px: int) -> Image.
     return sheet
 
 
-def _check_rgb_image(rgb: NDArray[np.uint8], what: str) -> NDArray[np.uint8]:
-    rgb = np.asarray(rgb)
+def _as_map(arr: ArrayLike | IndexedImage) -> NDArray | IndexedImage:
+    """An IndexedImage is read band by band as it stands (never expanded whole); anything else becomes an array."""
+    return arr if isinstance(arr, IndexedImage) else np.asarray(arr)
+
+
+def _check_rgb_image(rgb: NDArray[np.uint8] | IndexedImage, what: str) -> NDArray[np.uint8] | IndexedImage:
+    rgb = _as_map(rgb)
     if rgb.ndim != 3 or rgb.shape[2] != 3 or rgb.shape[0] < 1 or rgb.shape[1] < 1:
         raise InputError(f"{what}: expected an (H, W, 3) image, got shape {rgb.shape}")
     if rgb.dtype != np.uint8:
@@ -254,22 +261,29 @@ _REDUCING_GAP = 2.0
 _REDUCE_BAND_PX = 1 << 20  # source pixels per band of the box reduction
 
 
-def _box_reduced(rgb: NDArray[np.uint8], factor: int) -> Image.Image:
-    """``Image.reduce(factor)`` of an (H, W, 3) array, band by band (band heights are multiples of ``factor``)."""
+def _box_reduced(rgb: NDArray[np.uint8] | IndexedImage, factor: int) -> Image.Image:
+    """``Image.reduce(factor)`` of an (H, W, 3) image, band by band (band heights are multiples of ``factor``)."""
     h, w = rgb.shape[:2]
-    if factor <= 1:
-        return Image.fromarray(np.ascontiguousarray(rgb), mode="RGB")
+    factor = max(1, factor)
     band = factor * max(1, _REDUCE_BAND_PX // (w * factor))
     out = Image.new("RGB", (-(-w // factor), -(-h // factor)))
     for y0 in range(0, h, band):
-        part = Image.fromarray(np.ascontiguousarray(rgb[y0 : y0 + band]), mode="RGB").reduce(factor)
-        out.paste(part, (0, y0 // factor))
+        part = Image.fromarray(np.ascontiguousarray(rgb[y0 : y0 + band]), mode="RGB")
+        out.paste(part.reduce(factor) if factor > 1 else part, (0, y0 // factor))
     return out
 
 
+def rgb_image(rgb: NDArray[np.uint8] | IndexedImage) -> Image.Image:
+    """Return a Pillow RGB image of an (H, W, 3) uint8 array or :class:`IndexedImage`.
+
+    Built band by band, so besides the image itself no full-size copy is made.
+    """
+    return _box_reduced(_check_rgb_image(rgb, "picture"), 1)
+
+
 def side_by_side(
-    screen_rgb: NDArray[np.uint8],
-    print_rgb: NDArray[np.uint8],
+    screen_rgb: NDArray[np.uint8] | IndexedImage,
+    print_rgb: NDArray[np.uint8] | IndexedImage,
     swatches: Sequence[Swatch],
     *,
     max_width: int = 2400,
@@ -279,7 +293,8 @@ def side_by_side(
     Parameters
     ----------
     screen_rgb, print_rgb
-        (H, W, 3) uint8 sRGB renderings of the chart on screen and of its simulated print.
+        (H, W, 3) uint8 sRGB renderings of the chart on screen and of its simulated
+        print (arrays or :class:`~inkshift.chart.unique.IndexedImage`).
     swatches
         Palette colours drawn under the previews as screen | print pairs with hex,
         ΔE00 and marks in words, wrapping to as many rows as needed.
