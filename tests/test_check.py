@@ -23,7 +23,7 @@ from PIL import Image
 
 import colour
 from inkshift.chart.unique import expand
-from inkshift.check import check, open_output_profile
+from inkshift.check import check, open_output_profile, weighted_percentile
 from inkshift.color.convert import D50_XYZ, xyz_to_lab
 from inkshift.color.difference import delta_e_2000
 from inkshift.proof import proof_colors, srgb_profile
@@ -260,3 +260,18 @@ def test_bad_input_gives_one_line_and_exit_2(tmp_path, case):
     assert "Traceback" not in res.stderr
     assert len(res.stderr.strip().splitlines()) == 1, res.stderr
     assert sorted(p.name for p in tmp_path.rglob("*")) == before  # nothing written
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_weighted_percentile_equals_numpy_on_expanded_pixels(seed):
+    # Reference: numpy.percentile with method="inverted_cdf" (the smallest value
+    # whose cumulative share reaches the percentile, Hyndman & Fan 1996
+    # definition 1) over the per-colour values repeated by their pixel counts.
+    rng = np.random.default_rng(seed)
+    n = int(rng.integers(1, 400))
+    values = np.round(rng.gamma(2.0, 2.0, n), int(rng.integers(0, 4)))  # rounding makes ties
+    counts = rng.integers(1, 60, n)
+    pixels = np.repeat(values, counts)
+    for share in (0.0, 0.25, 0.5, 0.95, 0.999, 1.0):
+        want = np.percentile(pixels, 100 * share, method="inverted_cdf")
+        assert weighted_percentile(values, counts, share) == want

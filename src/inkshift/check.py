@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import json
 from dataclasses import replace
+from functools import partial
 from itertools import combinations
 from pathlib import Path
 from typing import Any
@@ -21,7 +22,7 @@ from PIL import Image
 
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage, load_chart
-from inkshift.chart.palette import Palette, extract_palette
+from inkshift.chart.palette import Palette, palette_evidence, palette_from_evidence
 from inkshift.chart.unique import IndexedImage, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
@@ -85,10 +86,12 @@ OUTPUT_FILES: dict[str, str] = {
 
 _WHITE = {"RGB": 255, "GRAY": 255, "CMYK": 0}
 
-FULL_SIZE_PNG_LEVEL = 1
-"""zlib level of the full-resolution PNGs (heat map, simulated print). Measured on
-a 24-megapixel chart: level 1 writes in about half the time of Pillow's default
-6 for files about 50 % larger; flat chart areas compress well either way."""
+FULL_SIZE_PNG: dict[str, int] = {"compress_level": 1, "compress_type": 3}
+"""zlib settings of the full-resolution PNGs (heat map, simulated print): level 1
+with the run-length strategy (Z_RLE = 3). Measured on 24-megapixel inputs: a
+chart's heat map in 0.9 s (2.0 MB) against 1.25 s (0.8 MB) at Pillow's default
+level 6; a photograph's simulated print in 2.9 s against 4.2 s at level 1 with
+the default strategy and about the same size."""
 
 
 def open_output_profile(spec: str | Path | Profile) -> tuple[Profile, ProfileInfo]:
@@ -164,13 +167,31 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
     """Return the smallest value with at least ``share`` of the pixels at or below it.
 
     ``values`` are per colour and ``counts`` their pixels, so this is the
-    per-pixel percentile without expanding to pixels.
+    per-pixel percentile without expanding to pixels. Exact, in linear time:
+    a pixel-weighted histogram finds the bin that holds the percentile, and
+    only the values in that bin are sorted (a photograph has millions).
     """
+    values = np.asarray(values)
     counts = np.asarray(counts, dtype=np.float64)
+    target = share * counts.sum()
+    lo, hi = float(values.min()), float(values.max())
+    if hi > lo:
+        # Monotone in the value, so every value of a lower bin is smaller.
+        bins = ((values - lo) * (_PERCENTILE_BINS / (hi - lo))).astype(np.int32)
+        np.minimum(bins, _PERCENTILE_BINS - 1, out=bins)
+        cum = np.cumsum(np.bincount(bins, weights=counts, minlength=_PERCENTILE_BINS))
+        b = min(int(np.searchsorted(cum, target, side="left")), _PERCENTILE_BINS - 1)
+        below = float(cum[b - 1]) if b > 0 else 0.0
+        inside = np.flatnonzero(bins == b)
+        values, counts, target = values[inside], counts[inside], target - below
     # Any sort will do: equal values have the same percentile whatever their order.
     order = np.argsort(values)
     cum = np.cumsum(counts[order])
-    return float(values[order][np.searchsorted(cum, share * counts.sum(), side="left")])
+    k = min(int(np.searchsorted(cum, target, side="left")), order.size - 1)
+    return float(values[order[k]])
+
+
+_PERCENTILE_BINS = 1 << 16
 
 
 def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.int64]) -> Summary:
@@ -331,14 +352,19 @@ def check(
     screen_side = reuse.get(source.data) if reuse is not None else None
     if screen_side is None:
         uniq = unique_colors(pixels)
-        palette = extract_palette(pixels, lambda colors: codes_to_lab(source, colors), unique=uniq, blends=False)
-        if reuse is not None:
-            reuse[source.data] = (uniq, palette)
+        evidence = [palette_evidence(pixels, uniq)]
     else:
         uniq, palette = screen_side
     # From here on the unique colours and each pixel's index stand for the
     # pixels; this function's own copies can go (a caller may hold the image).
     del pixels, chart
+    if screen_side is None:
+        lab_of = partial(codes_to_lab, source)
+        # Handed over without a name left here, so the evidence counts are
+        # freed inside once the palette colours are chosen.
+        palette = palette_from_evidence(uniq, evidence.pop(), lab_of, blends=False)
+        if reuse is not None:
+            reuse[source.data] = (uniq, palette)
 
     proof = proof_pixels(
         uniq.colors, source, output, intent, bpc, paper,
@@ -438,11 +464,11 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
     with output_folder(out_dir, workers=workers) as out:
         paths = {key: out.path / name for key, name in OUTPUT_FILES.items()}
         img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
-        out.image(OUTPUT_FILES["heatmap"], img, background=True, compress_level=FULL_SIZE_PNG_LEVEL)
+        out.image(OUTPUT_FILES["heatmap"], img, background=True, **FULL_SIZE_PNG)
         del img
         sim = rgb_image(maps.print_rgb)
         out.image(
-            OUTPUT_FILES["print"], sim, background=True, icc_profile=srgb_profile_bytes(), compress_level=FULL_SIZE_PNG_LEVEL
+            OUTPUT_FILES["print"], sim, background=True, icc_profile=srgb_profile_bytes(), **FULL_SIZE_PNG
         )
         del sim
         swatches = [

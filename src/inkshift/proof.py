@@ -40,7 +40,10 @@ __all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_pro
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
 
-_PROOF_CHUNK = 1 << 17  # colours per step of the float evaluation (bounds its temporaries)
+_PROOF_CHUNK = 1 << 14
+"""Colours per step of the float evaluation: it bounds the temporaries, and
+small steps stay in cache. Measured with two threads on 2 million random
+colours: 2**17 took 4.2 s and 142 MiB, 2**14 2.8 s and 49 MiB, 2**12 4.5 s."""
 _PROOF_THREADS = 2  # worker threads over the chunks (the machines this was tuned on have two cores)
 
 

@@ -96,7 +96,10 @@ from inkshift.color.vision import srgb_to_linear
 
 __all__ = [
     "Palette",
+    "PaletteEvidence",
     "extract_palette",
+    "palette_evidence",
+    "palette_from_evidence",
     "label_blends",
     "BLEND",
     "OTHER",
@@ -223,6 +226,7 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
+_LAB_CHUNK = 1 << 16  # colours per call of the caller's Lab conversion when there are many
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
 _EVIDENCE_THREADS = 2  # worker threads over strips and colour chunks (tuned on two cores)
 _PAIRS_PER_STEP = 1 << 20  # colour x palette pairs per step of the nearest-colour search
@@ -322,27 +326,73 @@ def extract_palette(
     Palette
     """
     pixels = np.asarray(pixels)
+    u = unique if unique is not None else unique_colors(pixels)
+    return palette_from_evidence(
+        u, palette_evidence(pixels, u, alpha=alpha), lab, unique_lab=unique_lab, blends=blends
+    )
+
+
+@dataclass(frozen=True)
+class PaletteEvidence:
+    """Step 1 per unique colour: the pixels that count and their spatial evidence.
+
+    Attributes
+    ----------
+    totals
+        Pixels of each colour that count (alpha above 0), int64.
+    flat, core, line, graded, rim
+        Pixels of each colour with that evidence (module docstring, step 1),
+        int32; ``rim`` counts flat pixels within :data:`HALO_REACH` of an edge.
+    """
+
+    totals: NDArray[np.int64]
+    flat: NDArray[np.int32]
+    core: NDArray[np.int32]
+    line: NDArray[np.int32]
+    graded: NDArray[np.int32]
+    rim: NDArray[np.int32]
+
+
+def palette_evidence(
+    pixels: ArrayLike, unique: UniqueColors, *, alpha: ArrayLike | None = None
+) -> PaletteEvidence:
+    """Return step 1 of :func:`extract_palette`: the spatial evidence per unique colour.
+
+    The only step that reads the pixels: a caller short of memory can let
+    them go before :func:`palette_from_evidence`.
+    """
+    pixels = np.asarray(pixels)
     if pixels.dtype != np.uint8 or pixels.ndim != 3 or pixels.shape[2] not in (1, 3, 4):
         raise ValueError(f"extract_palette needs (H, W, C) uint8 pixels, got {pixels.dtype} {pixels.shape}")
-    h, w, c = pixels.shape
-    u = unique if unique is not None else unique_colors(pixels)
-    n = len(u)
-    inverse = u.inverse
-
+    h, w, _ = pixels.shape
+    n = len(unique)
     if alpha is None:
         evidence_ok = None
-        totals = u.counts
+        totals = unique.counts
     else:
         a = np.asarray(alpha).reshape(-1)
         evidence_ok = (a == 255).reshape(h, w)
-        totals = np.bincount(inverse[a > 0], minlength=n).astype(np.int64)
+        totals = np.bincount(unique.inverse[a > 0], minlength=n).astype(np.int64)
+    return PaletteEvidence(totals, *_evidence_counts(pixels, evidence_ok, unique.inverse, totals))
 
-    flat_n, core_n, line_n, graded_n, rim_n = _evidence_counts(pixels, evidence_ok, inverse, totals)
-    # After the evidence, whose per-pixel flags are gone by now: with millions
-    # of colours (a photograph) the two are the largest arrays of this step.
-    # Lab given in float32 stays float32 (12 bytes a colour is enough for
-    # telling drawn colours apart; differences are computed in float64).
-    ulab = np.asarray(unique_lab) if unique_lab is not None else np.asarray(lab(u.colors), dtype=np.float64)
+
+def palette_from_evidence(
+    unique: UniqueColors,
+    evidence: PaletteEvidence,
+    lab: Callable[[NDArray[np.uint8]], NDArray[np.float64]],
+    *,
+    unique_lab: ArrayLike | None = None,
+    blends: bool = True,
+) -> Palette:
+    """Return steps 2-5 of :func:`extract_palette` from the evidence of step 1 (same parameters)."""
+    u = unique
+    n, c = len(u), u.colors.shape[1]
+    totals = evidence.totals
+    flat_n, core_n, line_n, graded_n, rim_n = evidence.flat, evidence.core, evidence.line, evidence.graded, evidence.rim
+    del evidence  # the counts above are dropped before step 5
+    # With millions of colours (a photograph) the Lab of every colour and the
+    # evidence are the largest arrays of this step; the pixels are not needed.
+    ulab = np.asarray(unique_lab) if unique_lab is not None else _lab_of_many(lab, u.colors)
 
     # Step 2: fills.
     free = totals > 0
@@ -433,6 +483,21 @@ def extract_palette(
         mix=np.broadcast_to(np.float64(np.nan), (labels.size,)),
     )
     return label_blends(palette, u.colors) if blends else palette
+
+
+def _lab_of_many(lab: _LabFn, colors: NDArray[np.uint8]) -> NDArray[np.floating]:
+    """``lab(colors)`` in chunks, kept as float32 when there are many colours.
+
+    12 bytes a colour is ample for telling drawn colours apart (differences are
+    computed in float64 from it), and the caller's conversion makes float64
+    temporaries several times its output, so it runs chunk by chunk.
+    """
+    if colors.shape[0] <= _LAB_CHUNK:
+        return np.asarray(lab(colors), dtype=np.float64)
+    out = np.empty((colors.shape[0], 3), np.float32)
+    for s in range(0, colors.shape[0], _LAB_CHUNK):
+        out[s : s + _LAB_CHUNK] = lab(colors[s : s + _LAB_CHUNK])
+    return out
 
 
 def _evidence_counts(
@@ -875,7 +940,11 @@ def _same(
     # ΔE00 only where it can matter: within 1 ΔE00 of each other, two 8-bit
     # sRGB colours are never more than about 30 codes apart.
     maybe = np.flatnonzero(~out & (codes <= _DE_PREFILTER_CODES))
-    out[maybe] = delta_e_2000(lab[maybe], lab1) <= NOISE_DELTA_E
+    # In chunks: in a photograph most colours pass the prefilter, and ΔE00
+    # makes a dozen float64 temporaries per colour.
+    for s in range(0, maybe.size, _CHUNK * 8):
+        part = maybe[s : s + _CHUNK * 8]
+        out[part] = delta_e_2000(lab[part], lab1) <= NOISE_DELTA_E
     return out
 
 

@@ -66,8 +66,6 @@ class UniqueColors:
         ``(N,)`` int64, pixels of each colour.
     inverse
         ``(H*W,)`` int32, index into ``colors`` of each pixel (row-major).
-    keys
-        ``(N,)`` uint32, the packed key of each colour (see :func:`pack_colors`).
     shape
         ``(H, W)`` of the image.
     """
@@ -75,7 +73,6 @@ class UniqueColors:
     colors: NDArray[np.uint8]
     counts: NDArray[np.int64]
     inverse: NDArray[np.int32]
-    keys: NDArray[np.uint32]
     shape: tuple[int, int]
 
     def __len__(self) -> int:
@@ -196,7 +193,6 @@ def unique_colors(pixels: ArrayLike) -> UniqueColors:
         colors=_unpack(ukeys, c),
         counts=counts,
         inverse=inverse,
-        keys=ukeys,
         shape=(h, w),
     )
 
@@ -302,6 +298,13 @@ class IndexedImage:
         if self.index.size != shape[0] * shape[1]:
             raise ValueError(f"an index of {self.index.size} pixels does not fit shape {shape}")
         self.shape: tuple[int, ...] = tuple(shape) + self.values.shape[1:]
+        # 8-bit RGB is gathered as one uint32 per colour: a one-dimensional take
+        # of 4-byte items is 2-3 times faster than taking 3-byte rows.
+        self._packed: NDArray[np.uint32] | None = None
+        if self.values.dtype == np.uint8 and self.values.ndim == 2 and self.values.shape[1] == 3:
+            padded = np.zeros((self.values.shape[0], 4), np.uint8)
+            padded[:, :3] = self.values
+            self._packed = padded.view(np.uint32).reshape(-1)
 
     @property
     def dtype(self) -> np.dtype:
@@ -319,10 +322,22 @@ class IndexedImage:
         if not isinstance(rows, slice) or rows.step not in (None, 1):
             raise TypeError("an IndexedImage is read by row slices, image[y0:y1]")
         y0, y1, _ = rows.indices(self.shape[0])
+        return self._expand(y0, max(y0, y1))
+
+    def packed_rows(self, y0: int, y1: int) -> NDArray[np.uint32]:
+        """Rows ``y0:y1`` of an 8-bit RGB map as (h, W) uint32 RGBX words (Pillow's "RGBX" raw layout)."""
+        if self._packed is None:
+            raise TypeError("packed_rows needs an (N, 3) uint8 IndexedImage")
         w = self.shape[1]
-        y1 = max(y0, y1)
+        return expand(self._packed, self.index[y0 * w : y1 * w], (y1 - y0, w))
+
+    def _expand(self, y0: int, y1: int) -> NDArray:
+        if self._packed is not None:
+            rgbx = self.packed_rows(y0, y1).view(np.uint8).reshape(y1 - y0, self.shape[1], 4)
+            return np.ascontiguousarray(rgbx[..., :3])
+        w = self.shape[1]
         return expand(self.values, self.index[y0 * w : y1 * w], (y1 - y0, w))
 
     def __array__(self, dtype: np.dtype | None = None, copy: bool | None = None) -> NDArray:
-        out = expand(self.values, self.index, self.shape[:2])
+        out = self._expand(0, self.shape[0])
         return out if dtype is None else out.astype(dtype, copy=False)

@@ -426,11 +426,22 @@ def heatmap_overlay(
     )
     canvas = _canvas_with_legend(h, w, legend)
     lut = _overlay_lut(vmax)
-    for y0, y1 in _bands(h, w):
-        idx = _levels(delta_e[y0:y1], vmax)
+    per_color = None
+    if all(isinstance(m, IndexedImage) for m in (screen_rgb, delta_e)) and screen_rgb.index is delta_e.index:
+        # A pixel's colour depends only on its unique colour: paint each once.
+        idx = _levels(delta_e.values, vmax)
         idx <<= 8
-        idx += faded_gray(screen_rgb[y0:y1])
-        band = lut.take(idx)
+        idx += faded_gray(screen_rgb.values)
+        per_color = IndexedImage(lut.take(idx), delta_e.index, (h, w))
+        del idx
+    for y0, y1 in _bands(h, w):
+        if per_color is not None:
+            band = per_color[y0:y1]
+        else:
+            idx = _levels(delta_e[y0:y1], vmax)
+            idx <<= 8
+            idx += faded_gray(screen_rgb[y0:y1])
+            band = lut.take(idx)
         oog = np.asarray(out_of_gamut[y0:y1], dtype=bool)
         if oog.any():
             dark, light = hatch.masks(y0, y1, w)

@@ -267,8 +267,13 @@ def _box_reduced(rgb: NDArray[np.uint8] | IndexedImage, factor: int) -> Image.Im
     factor = max(1, factor)
     band = factor * max(1, _REDUCE_BAND_PX // (w * factor))
     out = Image.new("RGB", (-(-w // factor), -(-h // factor)))
+    packed = isinstance(rgb, IndexedImage) and rgb.values.dtype == np.uint8
     for y0 in range(0, h, band):
-        part = Image.fromarray(np.ascontiguousarray(rgb[y0 : y0 + band]), mode="RGB")
+        y1 = min(h, y0 + band)
+        if packed:
+            part = Image.frombuffer("RGB", (w, y1 - y0), rgb.packed_rows(y0, y1), "raw", "RGBX", 0, 1)
+        else:
+            part = Image.fromarray(np.ascontiguousarray(rgb[y0:y1]), mode="RGB")
         out.paste(part.reduce(factor) if factor > 1 else part, (0, y0 // factor))
     return out
 
