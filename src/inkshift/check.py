@@ -23,7 +23,7 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage, load_chart
 from inkshift.chart.palette import Palette, palette_evidence, palette_from_evidence
-from inkshift.chart.unique import IndexedImage, unique_colors
+from inkshift.chart.unique import IndexedImage, pixel_runs, unique_colors
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import ImageError, InputError, ProfileError
 from inkshift.files import output_folder
@@ -85,14 +85,6 @@ OUTPUT_FILES: dict[str, str] = {
 """File names written into the output folder."""
 
 _WHITE = {"RGB": 255, "GRAY": 255, "CMYK": 0}
-
-FULL_SIZE_PNG: dict[str, int] = {"compress_level": 1, "compress_type": 3}
-"""zlib settings of the full-resolution PNGs (heat map, simulated print): level 1
-with the run-length strategy (Z_RLE = 3). Measured on 24-megapixel inputs: a
-chart's heat map in 0.9 s (2.0 MB) against 1.25 s (0.8 MB) at Pillow's default
-level 6; a photograph's simulated print in 2.9 s against 4.2 s at level 1 with
-the default strategy and about the same size."""
-
 
 def open_output_profile(spec: str | Path | Profile) -> tuple[Profile, ProfileInfo]:
     """Return the output profile named by ``spec`` (short name, path or Profile) and its info."""
@@ -393,12 +385,12 @@ def check(
 
     maps = None
     if keep_maps:
-        shape = uniq.shape
+        shape, runs = uniq.shape, pixel_runs(uniq.inverse)
         maps = ProofMaps(
-            screen_rgb=IndexedImage(screen_srgb8(uniq.colors, source), uniq.inverse, shape),
-            print_rgb=IndexedImage(proof.print_rgb, uniq.inverse, shape),
-            delta_e=IndexedImage(proof.delta_e, uniq.inverse, shape),
-            out_of_gamut=IndexedImage(proof.out_of_gamut, uniq.inverse, shape),
+            screen_rgb=IndexedImage(screen_srgb8(uniq.colors, source), uniq.inverse, shape, runs),
+            print_rgb=IndexedImage(proof.print_rgb, uniq.inverse, shape, runs),
+            delta_e=IndexedImage(proof.delta_e, uniq.inverse, shape, runs),
+            out_of_gamut=IndexedImage(proof.out_of_gamut, uniq.inverse, shape, runs),
         )
 
     extra: dict[str, Any] = {}
@@ -449,28 +441,25 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
     fails, files already renamed by this call are removed again and a folder
     this call created is removed, so no partial output is left behind.
     """
-    from inkshift.report.images import Swatch, heatmap_overlay, rgb_image, side_by_side
+    from inkshift.report.images import Swatch, heatmap_bands, rgb_bands, side_by_side, write_png_bands
 
     if report.maps is None:
         raise InputError("the report has no pixel maps (check(..., keep_maps=False)); nothing to draw")
     maps = report.maps
-    # PNG encoding releases the GIL, so a full-size picture can be written in a
-    # worker thread while the next one is drawn (24 MP chart: about 1 s less on
-    # two cores). Each holds 4 bytes a pixel until written, so with millions of
-    # colours, whose per-colour arrays are already large, they are written one
-    # at a time instead.
-    pixels = maps.delta_e.shape[0] * maps.delta_e.shape[1]
-    workers = 2 if maps.delta_e.values.size * _OVERLAP_COLOR_SHARE <= pixels else 0
-    with output_folder(out_dir, workers=workers) as out:
+    icc = srgb_profile_bytes()
+    height, width = maps.print_rgb.shape[:2]
+    # The full-size pictures are written band by band (never held whole), the
+    # heat map and the simulated print in two worker threads at once: drawing a
+    # band and zlib both release the GIL (24 MP chart: 1.1 s for both).
+    with output_folder(out_dir, workers=2) as out:
         paths = {key: out.path / name for key, name in OUTPUT_FILES.items()}
-        img = heatmap_overlay(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
-        out.image(OUTPUT_FILES["heatmap"], img, background=True, **FULL_SIZE_PNG)
-        del img
-        sim = rgb_image(maps.print_rgb)
-        out.image(
-            OUTPUT_FILES["print"], sim, background=True, icc_profile=srgb_profile_bytes(), **FULL_SIZE_PNG
+        heat_w, heat_h, heat = heatmap_bands(maps.screen_rgb, maps.delta_e, maps.out_of_gamut)
+        out.file(OUTPUT_FILES["heatmap"], lambda path: write_png_bands(path, heat_w, heat_h, heat), background=True)
+        out.file(
+            OUTPUT_FILES["print"],
+            lambda path: write_png_bands(path, width, height, rgb_bands(maps.print_rgb), icc_profile=icc),
+            background=True,
         )
-        del sim
         swatches = [
             Swatch(
                 screen_rgb=hex_rgb(c.hex),
@@ -482,7 +471,7 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
             for c in report.colors
         ]
         pair = side_by_side(maps.screen_rgb, maps.print_rgb, swatches)
-        out.image(OUTPUT_FILES["side_by_side"], pair, background=True, icc_profile=srgb_profile_bytes())
+        out.image(OUTPUT_FILES["side_by_side"], pair, icc_profile=icc)
         del pair
         out.wait()
         report.outputs = {k: str(p) for k, p in paths.items()}
@@ -491,5 +480,3 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
 
 
 _MARKS = {"out of gamut": "OUT", "shifts": "SHIFT", "merges": "MERGE"}
-
-_OVERLAP_COLOR_SHARE = 64  # write pictures in the background while colours are at most 1/64 of the pixels

@@ -12,7 +12,7 @@ import tempfile
 from concurrent.futures import Future, ThreadPoolExecutor
 from contextlib import contextmanager
 from pathlib import Path
-from typing import Iterator
+from typing import Callable, Iterator
 
 from PIL import Image
 
@@ -114,11 +114,23 @@ class OutputFolder:
 
     def image(self, name: str, image: Image.Image, *, background: bool = False, **params: object) -> Path:
         """Save a Pillow image as PNG under ``name`` atomically and return its path."""
+        return self.file(name, lambda path: save_image_atomic(image, path, **params), background=background)
+
+    def file(self, name: str, write: Callable[[Path], object], *, background: bool = False) -> Path:
+        """Have ``write(path)`` write the file ``name`` (atomically, by its own means); return the path.
+
+        With ``background`` (and workers), ``write`` runs in a worker thread.
+        """
+        path = self.path / name
+
+        def run() -> Path:
+            write(path)
+            return path
+
         if background and self._pool is not None:
-            self._pending.append(self._pool.submit(save_image_atomic, image, self.path / name, **params))
-            return self.path / name
-        path = save_image_atomic(image, self.path / name, **params)
-        self.written.append(path)
+            self._pending.append(self._pool.submit(run))
+            return path
+        self.written.append(run())
         return path
 
     def text(self, name: str, text: str) -> Path:

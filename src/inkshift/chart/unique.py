@@ -292,12 +292,18 @@ class IndexedImage:
     band, instead of 1-4 bytes per pixel per map.
     """
 
-    def __init__(self, values: ArrayLike, index: ArrayLike, shape: tuple[int, int]) -> None:
+    def __init__(
+        self, values: ArrayLike, index: ArrayLike, shape: tuple[int, int], runs: PixelRuns | None = None
+    ) -> None:
         self.values = np.asarray(values)
         self.index = np.asarray(index).reshape(-1)
         if self.index.size != shape[0] * shape[1]:
             raise ValueError(f"an index of {self.index.size} pixels does not fit shape {shape}")
         self.shape: tuple[int, ...] = tuple(shape) + self.values.shape[1:]
+        # The runs of the index (:func:`pixel_runs`), when given: a chart's rows
+        # are then spread run by run, several times faster than a gather.
+        self.runs = runs
+        self._run_ends = None if runs is None else np.cumsum(runs.lengths)
         # 8-bit RGB is gathered as one uint32 per colour: a one-dimensional take
         # of 4-byte items is 2-3 times faster than taking 3-byte rows.
         self._packed: NDArray[np.uint32] | None = None
@@ -328,15 +334,28 @@ class IndexedImage:
         """Rows ``y0:y1`` of an 8-bit RGB map as (h, W) uint32 RGBX words (Pillow's "RGBX" raw layout)."""
         if self._packed is None:
             raise TypeError("packed_rows needs an (N, 3) uint8 IndexedImage")
-        w = self.shape[1]
-        return expand(self._packed, self.index[y0 * w : y1 * w], (y1 - y0, w))
+        return self._spread(self._packed, y0, y1)
 
     def _expand(self, y0: int, y1: int) -> NDArray:
         if self._packed is not None:
             rgbx = self.packed_rows(y0, y1).view(np.uint8).reshape(y1 - y0, self.shape[1], 4)
             return np.ascontiguousarray(rgbx[..., :3])
+        return self._spread(self.values, y0, y1)
+
+    def _spread(self, values: NDArray, y0: int, y1: int) -> NDArray:
+        """Per-colour ``values`` spread over rows ``y0:y1``."""
         w = self.shape[1]
-        return expand(self.values, self.index[y0 * w : y1 * w], (y1 - y0, w))
+        p0, p1 = y0 * w, y1 * w
+        if self.runs is None or p1 <= p0:
+            return expand(values, self.index[p0:p1], (y1 - y0, w))
+        ends = self._run_ends
+        r0 = int(np.searchsorted(ends, p0, side="right"))
+        r1 = int(np.searchsorted(ends, p1 - 1, side="right")) + 1
+        lengths = self.runs.lengths[r0:r1].copy()
+        lengths[0] -= p0 - (ends[r0] - self.runs.lengths[r0])  # the first run may start above the band
+        lengths[-1] -= ends[r1 - 1] - p1  # and the last end below it
+        out = np.repeat(values[self.runs.colors[r0:r1]], lengths, axis=0)
+        return out.reshape((y1 - y0, w) + values.shape[1:])
 
     def __array__(self, dtype: np.dtype | None = None, copy: bool | None = None) -> NDArray:
         out = self._expand(0, self.shape[0])

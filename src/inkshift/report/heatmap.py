@@ -25,7 +25,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Sequence
+from typing import Iterator, Sequence
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -50,6 +50,7 @@ from inkshift.report.sheets import (
 
 __all__ = [
     "heatmap_overlay",
+    "heatmap_bands",
     "scalar_map",
     "legend_strip",
     "HatchStyle",
@@ -369,16 +370,20 @@ def _canvas_with_legend(height: int, width: int, legend: Image.Image) -> Image.I
     return canvas
 
 
-def heatmap_overlay(
-    screen_rgb: NDArray[np.uint8],
-    delta_e: NDArray[np.floating],
-    out_of_gamut: NDArray[np.bool_],
+def heatmap_bands(
+    screen_rgb: NDArray[np.uint8] | IndexedImage,
+    delta_e: NDArray[np.floating] | IndexedImage,
+    out_of_gamut: NDArray[np.bool_] | IndexedImage,
     *,
     vmax: float = HEATMAP_VMAX_DEFAULT,
     ticks: Sequence[float] | None = None,
     title: str = HEATMAP_TITLE,
-) -> Image.Image:
-    """Return the full-resolution heat map of a proof with its legend underneath.
+) -> tuple[int, int, Iterator[NDArray[np.uint8]]]:
+    """Return (width, height, bands) of the full-resolution heat map of a proof with its legend underneath.
+
+    The bands are (h, width, 3) uint8 rows, top to bottom, made only as they
+    are read (for :func:`inkshift.report.png.write_png_bands`);
+    :func:`heatmap_overlay` gathers them into one image.
 
     Parameters
     ----------
@@ -399,8 +404,8 @@ def heatmap_overlay(
 
     Returns
     -------
-    PIL.Image.Image
-        RGB. The chart occupies the top-left W x H pixels unchanged in scale; the
+    width, height, bands
+        The picture: the chart occupies the top-left W x H pixels unchanged in scale; the
         legend (:func:`legend_strip`) lies below it. Charts narrower than
         :data:`LEGEND_MIN_WIDTH` get a canvas that wide, white right of the chart.
     """
@@ -424,7 +429,7 @@ def heatmap_overlay(
         hatch=hatch,
         over_gray=page,
     )
-    canvas = _canvas_with_legend(h, w, legend)
+    width = max(w, legend.width)
     lut = _overlay_lut(vmax)
     per_color = None
     if all(isinstance(m, IndexedImage) for m in (screen_rgb, delta_e)) and screen_rgb.index is delta_e.index:
@@ -432,22 +437,54 @@ def heatmap_overlay(
         idx = _levels(delta_e.values, vmax)
         idx <<= 8
         idx += faded_gray(screen_rgb.values)
-        per_color = IndexedImage(lut.take(idx), delta_e.index, (h, w))
+        per_color = IndexedImage(lut.take(idx), delta_e.index, (h, w), delta_e.runs)
         del idx
-    for y0, y1 in _bands(h, w):
-        if per_color is not None:
-            band = per_color[y0:y1]
-        else:
-            idx = _levels(delta_e[y0:y1], vmax)
-            idx <<= 8
-            idx += faded_gray(screen_rgb[y0:y1])
-            band = lut.take(idx)
-        oog = np.asarray(out_of_gamut[y0:y1], dtype=bool)
-        if oog.any():
-            dark, light = hatch.masks(y0, y1, w)
-            band[dark & oog] = _PACKED_DARK
-            band[light & oog] = _PACKED_LIGHT
-        canvas.paste(_band_image(band), (0, y0))
+
+    def bands() -> Iterator[NDArray[np.uint8]]:
+        for y0, y1 in _bands(h, w):
+            if per_color is not None:
+                band = per_color[y0:y1]
+            else:
+                idx = _levels(delta_e[y0:y1], vmax)
+                idx <<= 8
+                idx += faded_gray(screen_rgb[y0:y1])
+                band = lut.take(idx)
+            oog = np.asarray(out_of_gamut[y0:y1], dtype=bool)
+            if oog.any():
+                dark, light = hatch.masks(y0, y1, w)
+                band[dark & oog] = _PACKED_DARK
+                band[light & oog] = _PACKED_LIGHT
+            rgb = band.view(np.uint8).reshape(y1 - y0, w, 4)[..., :3]
+            if width > w:  # a chart narrower than the legend: the page continues on the right
+                padded = np.empty((y1 - y0, width, 3), np.uint8)
+                padded[:, :w] = rgb
+                padded[:, w:] = BACKGROUND
+                rgb = padded
+            yield rgb
+        yield np.asarray(legend.convert("RGB"))
+
+    return width, h + legend.height, bands()
+
+
+def heatmap_overlay(
+    screen_rgb: NDArray[np.uint8] | IndexedImage,
+    delta_e: NDArray[np.floating] | IndexedImage,
+    out_of_gamut: NDArray[np.bool_] | IndexedImage,
+    *,
+    vmax: float = HEATMAP_VMAX_DEFAULT,
+    ticks: Sequence[float] | None = None,
+    title: str = HEATMAP_TITLE,
+) -> Image.Image:
+    """Return the full-resolution heat map of a proof with its legend underneath.
+
+    The picture of :func:`heatmap_bands` (same parameters) as one Pillow image.
+    """
+    width, height, bands = heatmap_bands(screen_rgb, delta_e, out_of_gamut, vmax=vmax, ticks=ticks, title=title)
+    canvas = Image.new("RGB", (width, height), BACKGROUND)
+    y = 0
+    for band in bands:
+        canvas.paste(Image.fromarray(np.ascontiguousarray(band), mode="RGB"), (0, y))
+        y += band.shape[0]
     return canvas
 
 

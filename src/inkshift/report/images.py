@@ -5,6 +5,9 @@
 - :class:`Swatch`, :func:`side_by_side` and :func:`swatch_sheet` (in
   :mod:`inkshift.report.sheets`): previews and labelled swatch pairs;
   :func:`rgb_image` turns a full-size map into a picture band by band.
+- :func:`heatmap_bands`, :func:`rgb_bands` and :func:`write_png_bands` (in
+  :mod:`inkshift.report.png`): full-size pictures written to PNG band by band,
+  never held whole.
 
 Each function returns a Pillow image; callers save it with
 :func:`inkshift.files.save_image_atomic`.
@@ -16,14 +19,19 @@ from inkshift.report.heatmap import (
     HEAT_FLOOR_DELTA_E,
     HEAT_OPAQUE_DELTA_E,
     HEATMAP_VMAX_DEFAULT,
+    heatmap_bands,
     heatmap_overlay,
     legend_strip,
     scalar_map,
 )
-from inkshift.report.sheets import Swatch, rgb_image, side_by_side, swatch_sheet
+from inkshift.report.png import write_png_bands
+from inkshift.report.sheets import Swatch, rgb_bands, rgb_image, side_by_side, swatch_sheet
 
 __all__ = [
     "heatmap_overlay",
+    "heatmap_bands",
+    "rgb_bands",
+    "write_png_bands",
     "scalar_map",
     "legend_strip",
     "rgb_image",

@@ -15,7 +15,7 @@ from __future__ import annotations
 import unicodedata
 from dataclasses import dataclass, field
 from functools import lru_cache
-from typing import Sequence
+from typing import Iterator, Sequence
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -26,6 +26,7 @@ from inkshift.errors import InputError
 
 __all__ = [
     "rgb_image",
+    "rgb_bands",
     "Swatch",
     "side_by_side",
     "swatch_sheet",
@@ -284,6 +285,21 @@ def rgb_image(rgb: NDArray[np.uint8] | IndexedImage) -> Image.Image:
     Built band by band, so besides the image itself no full-size copy is made.
     """
     return _box_reduced(_check_rgb_image(rgb, "picture"), 1)
+
+
+def rgb_bands(rgb: NDArray[np.uint8] | IndexedImage) -> Iterator[NDArray[np.uint8]]:
+    """Yield an (H, W, 3) uint8 array or :class:`IndexedImage` as bands of rows, top to bottom.
+
+    For :func:`inkshift.report.png.write_png_bands`: an IndexedImage is
+    expanded one band at a time.
+    """
+    rgb = _check_rgb_image(rgb, "picture")
+    h, w = rgb.shape[:2]
+    band = max(1, _REDUCE_BAND_PX // w)
+    packed = isinstance(rgb, IndexedImage) and rgb.values.dtype == np.uint8
+    for y0 in range(0, h, band):
+        y1 = min(h, y0 + band)
+        yield rgb.packed_rows(y0, y1).view(np.uint8).reshape(y1 - y0, w, 4)[..., :3] if packed else rgb[y0:y1]
 
 
 def side_by_side(
