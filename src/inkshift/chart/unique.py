@@ -296,7 +296,10 @@ class IndexedImage:
         self, values: ArrayLike, index: ArrayLike, shape: tuple[int, int], runs: PixelRuns | None = None
     ) -> None:
         self.values = np.asarray(values)
-        self.index = np.asarray(index).reshape(-1)
+        index = np.asarray(index)
+        # Kept as the very object given when already flat: maps built on one
+        # index are recognised as sharing it (``a.index is b.index``).
+        self.index = index if index.ndim == 1 else index.reshape(-1)
         if self.index.size != shape[0] * shape[1]:
             raise ValueError(f"an index of {self.index.size} pixels does not fit shape {shape}")
         self.shape: tuple[int, ...] = tuple(shape) + self.values.shape[1:]
