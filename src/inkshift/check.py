@@ -342,21 +342,21 @@ def check(
         notes=tuple(chart.notes) + tuple(notes) + tuple(composite_notes),
     )
     screen_side = reuse.get(source.data) if reuse is not None else None
-    if screen_side is None:
-        uniq = unique_colors(pixels)
-        evidence = [palette_evidence(pixels, uniq)]
-    else:
-        uniq, palette = screen_side
+    uniq = unique_colors(pixels) if screen_side is None else screen_side[0]
     # From here on the unique colours and each pixel's index stand for the
-    # pixels; this function's own copies can go (a caller may hold the image).
+    # pixels (3 bytes a pixel less); this function's own copies can go (a
+    # caller may still hold the image).
     del pixels, chart
+    runs = pixel_runs(uniq.inverse)
     if screen_side is None:
-        lab_of = partial(codes_to_lab, source)
+        evidence = [palette_evidence(IndexedImage(uniq.colors, uniq.inverse, uniq.shape, runs), uniq)]
         # Handed over without a name left here, so the evidence counts are
         # freed inside once the palette colours are chosen.
-        palette = palette_from_evidence(uniq, evidence.pop(), lab_of, blends=False)
+        palette = palette_from_evidence(uniq, evidence.pop(), partial(codes_to_lab, source), blends=False)
         if reuse is not None:
             reuse[source.data] = (uniq, palette)
+    else:
+        palette = screen_side[1]
 
     proof = proof_pixels(
         uniq.colors, source, output, intent, bpc, paper,
@@ -385,7 +385,7 @@ def check(
 
     maps = None
     if keep_maps:
-        shape, runs = uniq.shape, pixel_runs(uniq.inverse)
+        shape = uniq.shape
         maps = ProofMaps(
             screen_rgb=IndexedImage(screen_srgb8(uniq.colors, source), uniq.inverse, shape, runs),
             print_rgb=IndexedImage(proof.print_rgb, uniq.inverse, shape, runs),

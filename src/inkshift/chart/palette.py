@@ -90,7 +90,7 @@ from typing import Callable
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from inkshift.chart.unique import UniqueColors, pack_colors, unique_colors
+from inkshift.chart.unique import IndexedImage, UniqueColors, as_pixel_map, pack_colors, unique_colors
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import srgb_to_linear
 
@@ -226,6 +226,7 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
+_LABEL_CHUNK = 1 << 18  # unique colours per step of the final labelling
 _LAB_CHUNK = 1 << 16  # colours per call of the caller's Lab conversion when there are many
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
 _EVIDENCE_THREADS = 2  # worker threads over strips and colour chunks (tuned on two cores)
@@ -354,14 +355,16 @@ class PaletteEvidence:
 
 
 def palette_evidence(
-    pixels: ArrayLike, unique: UniqueColors, *, alpha: ArrayLike | None = None
+    pixels: ArrayLike | IndexedImage, unique: UniqueColors, *, alpha: ArrayLike | None = None
 ) -> PaletteEvidence:
     """Return step 1 of :func:`extract_palette`: the spatial evidence per unique colour.
 
-    The only step that reads the pixels: a caller short of memory can let
-    them go before :func:`palette_from_evidence`.
+    The only step that reads the pixels, a band of rows at a time; they may be
+    given as ``IndexedImage(unique.colors, unique.inverse, shape)``, so that a
+    caller short of memory can let the pixel array go once the unique colours
+    are known.
     """
-    pixels = np.asarray(pixels)
+    pixels = as_pixel_map(pixels)
     if pixels.dtype != np.uint8 or pixels.ndim != 3 or pixels.shape[2] not in (1, 3, 4):
         raise ValueError(f"extract_palette needs (H, W, C) uint8 pixels, got {pixels.dtype} {pixels.shape}")
     h, w, _ = pixels.shape
@@ -541,22 +544,26 @@ def _evidence_counts(
             f |= mask.view(np.uint8) << np.uint8(bit)
         return None
 
-    def count_bit(bit: int) -> NDArray[np.int64]:
+    def count_bit(bit: int) -> NDArray[np.int32]:
         # Gathering and counting cost grows with the pixels selected, so a bit
         # set on most pixels (in a photograph, "not flat") is counted through
         # its complement: every pixel gives evidence when there is no alpha.
         m = np.uint8(1 << bit)
-        complement = evidence_ok is None and 2 * np.count_nonzero(flags & m) > flags.size
-        total = np.zeros(n, np.int64)
-        for c0 in range(0, flags.size, _COUNT_CHUNK):
+        chunks = range(0, flags.size, _COUNT_CHUNK)
+        set_n = sum(int(np.count_nonzero(flags[c0 : c0 + _COUNT_CHUNK] & m)) for c0 in chunks)
+        complement = evidence_ok is None and 2 * set_n > flags.size
+        total = np.zeros(n, np.int32)
+        for c0 in chunks:
             part = flags[c0 : c0 + _COUNT_CHUNK] & m
             pick = (part == 0) if complement else (part != 0)
             total += np.bincount(inverse[c0 : c0 + _COUNT_CHUNK][pick], minlength=n)
-        return totals - total if complement else total
+        if complement:
+            np.subtract(totals, total, out=total, casting="unsafe")  # counts fit int32 (< 2**31 pixels)
+        return total
 
     # Strips are independent (each writes its own rows of flags), and numpy
     # releases the GIL inside its array operations: two threads share them.
-    out = [np.zeros(n, np.int64) for _ in range(n_bits)]
+    out = [np.zeros(n if per_strip else 0, np.int64) for _ in range(n_bits)]
     with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
         for counts in pool.map(strip, range(0, h, step)):
             if counts is not None:
@@ -564,12 +571,13 @@ def _evidence_counts(
                     total += c
     if not per_strip:
         # One bit at a time: each count makes an int64 array as long as the colour list.
-        out = [count_bit(bit).astype(np.int32) for bit in range(n_bits)]
+        out = [count_bit(bit) for bit in range(n_bits)]
+    out = [c.astype(np.int32, copy=False) for c in out]
     counted = totals if evidence_ok is None else out[5]
-    # Flat and core pixels are the rule in a chart: count the exceptions.
-    return tuple(
-        np.asarray(c, dtype=np.int32) for c in (counted - out[0], counted - out[1], out[2], out[3], out[4])
-    )
+    # Flat and core pixels are the rule in a chart: the exceptions were counted.
+    for exceptions in out[:2]:
+        np.subtract(counted, exceptions, out=exceptions, casting="unsafe")
+    return tuple(out[:5])
 
 
 def _pixel_evidence(
@@ -879,9 +887,7 @@ def _group(
     which bounds the work on images with a million colours; a chart's
     evidence sits in far fewer.
     """
-    pool = np.flatnonzero(free & (evidence > 0))
-    if pool.size > _MAX_GROUP_COLORS:
-        pool = pool[np.argpartition(-evidence[pool], _MAX_GROUP_COLORS)[:_MAX_GROUP_COLORS]]
+    pool = _strongest(evidence, free & (evidence > 0), _MAX_GROUP_COLORS)
     cols, labs, ev = colors[pool], ulab[pool], evidence[pool].astype(np.int64)
     open_ = np.ones(pool.size, bool)
     out: list[_Group] = []
@@ -904,6 +910,24 @@ def _group(
         rep = _refine(cols, np.where(claimable, ev, 0), _weighted_median(cols[members_idx], ev[members_idx]))
         out.append((rep, total, members))
     return out
+
+
+def _strongest(evidence: NDArray[np.integer], candidates: NDArray[np.bool_], k: int) -> NDArray[np.intp]:
+    """Indices of the ``k`` candidates with the most evidence (ties at the cut: lowest indices), ascending.
+
+    Found through the k-th largest value rather than an argsort or argpartition
+    of every candidate: a photograph has millions, and their int64 indices
+    would be the largest temporaries of the palette.
+    """
+    n_candidates = int(np.count_nonzero(candidates))
+    if n_candidates <= k:
+        return np.flatnonzero(candidates)
+    values = evidence[candidates]
+    cut = np.partition(values, n_candidates - k)[n_candidates - k]
+    del values
+    above = np.flatnonzero(candidates & (evidence > cut))
+    at_cut = np.flatnonzero(candidates & (evidence == cut))[: k - above.size]
+    return np.sort(np.concatenate([above, at_cut]))
 
 
 def _refine(colors: NDArray[np.uint8], ev: NDArray[np.int64], rep: NDArray[np.uint8]) -> NDArray[np.uint8]:
@@ -1166,9 +1190,23 @@ def _segment(
 
 
 def _noise_labels(
-    ucolors: NDArray[np.uint8], ulab: NDArray[np.float64], colors: NDArray[np.uint8], plab: NDArray[np.float64]
+    ucolors: NDArray[np.uint8], ulab: NDArray[np.floating], colors: NDArray[np.uint8], plab: NDArray[np.float64]
 ) -> NDArray[np.int32]:
-    """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER."""
+    """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER.
+
+    Each colour is labelled on its own, so the work runs in chunks of colours
+    (a photograph has millions; the temporaries stay those of one chunk).
+    """
+    labels = np.empty(ucolors.shape[0], np.int32)
+    for s in range(0, ucolors.shape[0], _LABEL_CHUNK):
+        part = slice(s, s + _LABEL_CHUNK)
+        labels[part] = _noise_labels_part(ucolors[part], ulab[part], colors, plab)
+    return labels
+
+
+def _noise_labels_part(
+    ucolors: NDArray[np.uint8], ulab: NDArray[np.floating], colors: NDArray[np.uint8], plab: NDArray[np.float64]
+) -> NDArray[np.int32]:
     idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E)
     labels = np.where(dist <= NOISE_DELTA_E, idx, np.int32(OTHER))
     del idx, dist

@@ -31,13 +31,12 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from PIL import Image, ImageDraw
 
-from inkshift.chart.unique import IndexedImage
+from inkshift.chart.unique import IndexedImage, as_pixel_map
 from inkshift.color.convert import D50_XYZ, lab_to_xyz, xyz_to_lab
 from inkshift.color.scale import HEAT_TICKS_DEFAULT, heat_colors
 from inkshift.color.vision import linear_to_srgb, srgb_to_linear
 from inkshift.errors import InputError
 from inkshift.report.sheets import (
-    _as_map,
     BACKGROUND,
     TEXT_COLOR,
     fit_text,
@@ -239,7 +238,7 @@ def _check_vmax(vmax: float, what: str, minimum: float | None = None) -> float:
 
 
 def _check_map(arr: ArrayLike | IndexedImage, shape: tuple[int, int], name: str, what: str) -> NDArray | IndexedImage:
-    arr = _as_map(arr)
+    arr = as_pixel_map(arr)
     if arr.shape != shape:
         raise InputError(f"{what}: {name} has shape {arr.shape}, expected {shape}")
     return arr
@@ -412,7 +411,7 @@ def heatmap_bands(
     what = "heat map"
     # Values above vmax are drawn at vmax; below the opaque point that would fade them out.
     vmax = _check_vmax(vmax, what, minimum=HEAT_OPAQUE_DELTA_E)
-    screen_rgb = _as_map(screen_rgb)
+    screen_rgb = as_pixel_map(screen_rgb)
     if screen_rgb.ndim != 3 or screen_rgb.shape[2] != 3 or 0 in screen_rgb.shape or screen_rgb.dtype != np.uint8:
         raise InputError(f"{what}: expected an (H, W, 3) uint8 image, got {screen_rgb.dtype} {screen_rgb.shape}")
     h, w = screen_rgb.shape[:2]

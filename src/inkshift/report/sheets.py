@@ -21,7 +21,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from PIL import Image, ImageDraw, ImageFont
 
-from inkshift.chart.unique import IndexedImage
+from inkshift.chart.unique import IndexedImage, as_pixel_map
 from inkshift.errors import InputError
 
 __all__ = [
@@ -223,13 +223,8 @@ def _swatch_grid(swatches: Sequence[Swatch], width: int, font_px: int) -> Image.
     return sheet
 
 
-def _as_map(arr: ArrayLike | IndexedImage) -> NDArray | IndexedImage:
-    """An IndexedImage is read band by band as it stands (never expanded whole); anything else becomes an array."""
-    return arr if isinstance(arr, IndexedImage) else np.asarray(arr)
-
-
 def _check_rgb_image(rgb: NDArray[np.uint8] | IndexedImage, what: str) -> NDArray[np.uint8] | IndexedImage:
-    rgb = _as_map(rgb)
+    rgb = as_pixel_map(rgb)
     if rgb.ndim != 3 or rgb.shape[2] != 3 or rgb.shape[0] < 1 or rgb.shape[1] < 1:
         raise InputError(f"{what}: expected an (H, W, 3) image, got shape {rgb.shape}")
     if rgb.dtype != np.uint8:
