@@ -9,7 +9,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 
-from inkshift.color.difference import delta_e_1976, delta_e_1994, delta_e_2000
+from inkshift.color.difference import DE2000_PER_DE76, delta_e_2000_over, delta_e_1976, delta_e_1994, delta_e_2000
 from inkshift.errors import InputError
 
 # G. Sharma, W. Wu, E. N. Dalal (2005), "The CIEDE2000 color-difference formula:
@@ -220,3 +220,33 @@ def test_arrays_non_negative_finite(lab1: np.ndarray, lab2: np.ndarray) -> None:
         out = f(lab1, lab2)
         assert out.shape == (8,)
         assert np.all(np.isfinite(out)) and np.all(out >= 0.0)
+
+
+def test_delta_e_2000_over_equals_the_plain_comparison():
+    # The ΔE*ab shortcut must never change the answer: compared with
+    # delta_e_2000(...) > limit on pairs spread from identical to far apart,
+    # many of them near the limit, neutrals and saturated colours included.
+    rng = np.random.default_rng(17)
+    n = 200_000
+    lab1 = np.column_stack([rng.uniform(0, 100, n), rng.uniform(-128, 128, n), rng.uniform(-128, 128, n)])
+    lab1[: n // 4, 1:] *= 0.02  # near-neutral
+    step = rng.normal(size=(n, 3))
+    step *= (rng.uniform(0.0, 3.0, n) / np.linalg.norm(step, axis=1))[:, None]
+    lab2 = lab1 + step
+    for limit in (0.5, 1.0, 2.0, 2.3):
+        want = delta_e_2000(lab1, lab2) > limit
+        assert np.array_equal(delta_e_2000_over(lab1, lab2, limit), want)
+
+
+def test_de2000_per_de76_bounds_the_ratio():
+    # The derived bound (Sharma, Wu & Dalal 2005 terms, see DE2000_PER_DE76)
+    # checked on random pairs: small steps from anywhere, where the weights
+    # matter most, and arbitrary pairs.
+    rng = np.random.default_rng(23)
+    n = 500_000
+    lab1 = np.column_stack([rng.uniform(0, 100, n), rng.uniform(-128, 128, n), rng.uniform(-128, 128, n)])
+    lab1[: n // 3, 1:] *= rng.uniform(0, 0.05, (n // 3, 1))
+    lab2 = lab1 + rng.normal(0, 0.5, (n, 3))
+    lab2[n // 2 :] = np.column_stack([rng.uniform(0, 100, n - n // 2), rng.uniform(-128, 128, (n - n // 2, 2))])
+    ratio = delta_e_2000(lab1, lab2) / delta_e_1976(lab1, lab2)
+    assert np.nanmax(ratio) < DE2000_PER_DE76

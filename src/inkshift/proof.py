@@ -27,7 +27,7 @@ from typing import Callable
 import numpy as np
 from numpy.typing import NDArray
 
-from inkshift.color.difference import delta_e_2000
+from inkshift.color.difference import delta_e_2000, delta_e_2000_over
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes, transform_colors
 from inkshift.icc.evaluate import codes_to_lab, device_to_lab, lab_to_device
@@ -161,15 +161,16 @@ def print_view(intent: Intent, paper: bool = False) -> Intent:
 def print_side(
     screen_lab: NDArray[np.float64], device: NDArray[np.uint8], output: Profile, view: Intent
 ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], NDArray[np.uint8]]:
-    """Return (print Lab, ΔE00 from screen, round-trip ΔE00, print sRGB) for separated colours.
+    """Return (print Lab, ΔE00 from screen, round-trip Lab, print sRGB) for separated colours.
 
     ``device`` is the 8-bit separation of colours whose screen CIELAB is
     ``screen_lab``. The round trip is relative colorimetric, Lab -> B2A1 ->
-    A2B1 through the float evaluator, whatever the view.
+    A2B1 through the float evaluator, whatever the view; how far it lands
+    from ``screen_lab`` is the out-of-gamut measure.
     """
     prt = codes_to_lab(output, np.asarray(device, dtype=np.uint8), view)
     reached = device_to_lab(output, lab_to_device(output, screen_lab, Intent.RELATIVE), Intent.RELATIVE)
-    return prt, delta_e_2000(screen_lab, prt), delta_e_2000(screen_lab, reached), lab_to_srgb8(prt)
+    return prt, delta_e_2000(screen_lab, prt), reached, lab_to_srgb8(prt)
 
 
 def check_output_profile(profile: Profile) -> None:
@@ -222,7 +223,8 @@ def proof_colors(
 
     def keep(part: slice, scr: NDArray[np.float64], side: _PrintSide) -> None:
         screen_lab[part] = scr
-        print_lab[part], delta_e[part], roundtrip[part], print_rgb[part] = side
+        print_lab[part], delta_e[part], reached, print_rgb[part] = side
+        roundtrip[part] = delta_e_2000(scr, reached)
 
     device = _proof_parts(colors, source, output, intent, bpc, paper, keep)
     return ColorProof(
@@ -258,8 +260,8 @@ def proof_pixels(
     print_rgb = np.empty((n, 3), np.uint8)
 
     def keep(part: slice, scr: NDArray[np.float64], side: _PrintSide) -> None:
-        prt, delta_e[part], roundtrip, print_rgb[part] = side
-        out_of_gamut[part] = roundtrip > out_of_gamut_delta_e
+        prt, delta_e[part], reached, print_rgb[part] = side
+        out_of_gamut[part] = delta_e_2000_over(scr, reached, out_of_gamut_delta_e)
         if print_lab is not None:
             print_lab[part] = prt
 

@@ -321,7 +321,8 @@ def _proof_lab(
     device = transform_colors(
         _lab_to_pillow8(lab), lab_profile(), output, "LAB", PILLOW_MODES[output.color_space], intent, bpc
     )
-    print_lab, delta_e, roundtrip, print_rgb = print_side(lab, device, output, print_view(intent))
+    print_lab, delta_e, reached, print_rgb = print_side(lab, device, output, print_view(intent))
+    roundtrip = delta_e_2000(lab, reached)
     return ColorProof(
         screen_lab=lab,
         device=device,

@@ -21,7 +21,16 @@ from numpy.typing import ArrayLike, NDArray
 
 from inkshift.errors import InputError
 
-__all__ = ["delta_e_1976", "delta_e_1994", "delta_e_2000"]
+__all__ = ["delta_e_1976", "delta_e_1994", "delta_e_2000", "delta_e_2000_over", "DE2000_PER_DE76"]
+
+DE2000_PER_DE76 = 2.1
+"""An upper bound of ΔE00 / ΔE*ab for any two colours (kL = kC = kH = 1), derived
+from Sharma, Wu & Dalal (2005), eqs. (2)-(22): ΔL' = ΔL* and S_L >= 1; with one G
+per pair, a' = (1 + G) a* and G <= 0.5, so ΔC'^2 + ΔH'^2 (the squared distance
+in a'b') <= 2.25 Δa*b*^2; S_C >= 1 and S_H >= 1 (T >= 0.36 > 0); the rotation term
+adds at most |R_T| / 2 <= sin 60° of the chroma and hue terms (R_C <= 2,
+Δθ <= 30°). Hence ΔE00^2 <= ΔL*^2 + 1.866 * 2.25 Δa*b*^2 <= 4.2 ΔE*ab^2, and
+sqrt(4.2) = 2.05, rounded up."""
 
 _25_POW_7 = 25.0**7
 # cos and sin of the constant phase offsets in the CIEDE2000 weighting function T.
@@ -255,3 +264,20 @@ def delta_e_2000(
     # Exact rounding can leave a tiny negative sum for identical colours.
     np.maximum(rt, 0.0, out=rt)
     return np.sqrt(rt, out=rt)
+
+
+def delta_e_2000_over(lab1: ArrayLike, lab2: ArrayLike, limit: float) -> NDArray[np.bool_]:
+    """Return ``delta_e_2000(lab1, lab2) > limit``, computing ΔE00 only where needed.
+
+    Where ΔE*ab <= ``limit`` / :data:`DE2000_PER_DE76`, ΔE00 cannot exceed the
+    limit, so the answer is False without it; elsewhere ΔE00 decides. Exactly
+    the same result as the plain comparison, and cheaper when most pairs are
+    close (an out-of-gamut test over millions of colours).
+    """
+    a, b = _pair(lab1, lab2)
+    shape = np.broadcast_shapes(a.shape, b.shape)[:-1]
+    a, b = np.broadcast_to(a, shape + (3,)), np.broadcast_to(b, shape + (3,))
+    over = np.zeros(shape, bool)
+    maybe = delta_e_1976(a, b) > limit / DE2000_PER_DE76
+    over[maybe] = delta_e_2000(a[maybe], b[maybe]) > limit
+    return over
