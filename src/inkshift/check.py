@@ -31,6 +31,7 @@ from inkshift.icc.cms import srgb_profile_bytes
 from inkshift.icc.evaluate import codes_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile, read_profile
+from inkshift.memory import release_freed_memory
 from inkshift.proof import (
     ColorProof,
     check_output_profile,
@@ -164,18 +165,27 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
     only the values in that bin are sorted (a photograph has millions).
     """
     values = np.asarray(values)
-    counts = np.asarray(counts, dtype=np.float64)
-    target = share * counts.sum()
+    counts = np.asarray(counts)
+    target = share * float(counts.sum(dtype=np.float64))
     lo, hi = float(values.min()), float(values.max())
     if hi > lo:
-        # Monotone in the value, so every value of a lower bin is smaller.
-        bins = ((values - lo) * (_PERCENTILE_BINS / (hi - lo))).astype(np.int32)
-        np.minimum(bins, _PERCENTILE_BINS - 1, out=bins)
-        cum = np.cumsum(np.bincount(bins, weights=counts, minlength=_PERCENTILE_BINS))
+        # Bins are monotone in the value, so every value of a lower bin is smaller.
+        scale = _PERCENTILE_BINS / (hi - lo)
+
+        def bins_of(part: slice) -> NDArray[np.int32]:
+            bins = ((values[part] - lo) * scale).astype(np.int32)
+            return np.minimum(bins, _PERCENTILE_BINS - 1, out=bins)
+
+        hist = np.zeros(_PERCENTILE_BINS)
+        parts = [slice(s, s + _STATS_CHUNK) for s in range(0, values.size, _STATS_CHUNK)]
+        for part in parts:
+            hist += np.bincount(bins_of(part), weights=counts[part], minlength=_PERCENTILE_BINS)
+        cum = np.cumsum(hist)
         b = min(int(np.searchsorted(cum, target, side="left")), _PERCENTILE_BINS - 1)
         below = float(cum[b - 1]) if b > 0 else 0.0
-        inside = np.flatnonzero(bins == b)
+        inside = np.concatenate([np.flatnonzero(bins_of(part) == b) + part.start for part in parts])
         values, counts, target = values[inside], counts[inside], target - below
+    counts = np.asarray(counts, dtype=np.float64)
     # Any sort will do: equal values have the same percentile whatever their order.
     order = np.argsort(values)
     cum = np.cumsum(counts[order])
@@ -184,17 +194,22 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
 
 
 _PERCENTILE_BINS = 1 << 16
+_STATS_CHUNK = 1 << 20  # colours per step of the pixel-weighted statistics
 
 
-def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.int64]) -> Summary:
+def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.integer]) -> Summary:
     """Return per-pixel statistics from per-colour values weighted by pixel counts."""
-    counts = np.asarray(counts, dtype=np.float64)
-    total = counts.sum()
+    total = weighted = outside = 0.0
+    for s in range(0, len(counts), _STATS_CHUNK):  # float64 counts of millions of colours are not needed at once
+        part = np.asarray(counts[s : s + _STATS_CHUNK], dtype=np.float64)
+        total += part.sum()
+        weighted += float(np.dot(delta_e[s : s + _STATS_CHUNK], part))
+        outside += part[out_of_gamut[s : s + _STATS_CHUNK]].sum()
     return Summary(
-        delta_e_mean=float(np.dot(delta_e, counts) / total),
+        delta_e_mean=weighted / total,
         delta_e_p95=weighted_percentile(delta_e, counts, 0.95),
         delta_e_max=float(delta_e.max()),
-        out_of_gamut_share=float(counts[out_of_gamut].sum() / total),
+        out_of_gamut_share=float(outside / total),
     )
 
 
@@ -347,12 +362,15 @@ def check(
     # pixels (3 bytes a pixel less); this function's own copies can go (a
     # caller may still hold the image).
     del pixels, chart
+    release_freed_memory()  # at each step's end: its temporaries would stay resident (inkshift.memory)
     runs = pixel_runs(uniq.inverse)
     if screen_side is None:
         evidence = [palette_evidence(IndexedImage(uniq.colors, uniq.inverse, uniq.shape, runs), uniq)]
+        release_freed_memory()
         # Handed over without a name left here, so the evidence counts are
         # freed inside once the palette colours are chosen.
         palette = palette_from_evidence(uniq, evidence.pop(), partial(codes_to_lab, source), blends=False)
+        release_freed_memory()
         if reuse is not None:
             reuse[source.data] = (uniq, palette)
     else:
@@ -363,6 +381,7 @@ def check(
         out_of_gamut_delta_e=thresholds.out_of_gamut, keep_print_lab=keep_print_lab,
     )
     summary = weighted_summary(proof.delta_e, proof.out_of_gamut, uniq.counts)
+    release_freed_memory()
     pal_proof = proof_colors(
         palette.colors, source, output, intent, bpc, paper, out_of_gamut_delta_e=thresholds.out_of_gamut
     )

@@ -343,15 +343,16 @@ class PaletteEvidence:
         Pixels of each colour that count (alpha above 0), int64.
     flat, core, line, graded, rim
         Pixels of each colour with that evidence (module docstring, step 1),
-        int32; ``rim`` counts flat pixels within :data:`HALO_REACH` of an edge.
+        uint16 where every count fits, else int32; ``rim`` counts flat pixels
+        within :data:`HALO_REACH` of an edge.
     """
 
     totals: NDArray[np.int64]
-    flat: NDArray[np.int32]
-    core: NDArray[np.int32]
-    line: NDArray[np.int32]
-    graded: NDArray[np.int32]
-    rim: NDArray[np.int32]
+    flat: NDArray[np.integer]
+    core: NDArray[np.integer]
+    line: NDArray[np.integer]
+    graded: NDArray[np.integer]
+    rim: NDArray[np.integer]
 
 
 def palette_evidence(
@@ -392,7 +393,7 @@ def palette_from_evidence(
     n, c = len(u), u.colors.shape[1]
     totals = evidence.totals
     flat_n, core_n, line_n, graded_n, rim_n = evidence.flat, evidence.core, evidence.line, evidence.graded, evidence.rim
-    del evidence  # the counts above are dropped before step 5
+    del evidence  # each count is dropped as soon as its step is done (millions of colours)
     # With millions of colours (a photograph) the Lab of every colour and the
     # evidence are the largest arrays of this step; the pixels are not needed.
     ulab = np.asarray(unique_lab) if unique_lab is not None else _lab_of_many(lab, u.colors)
@@ -402,6 +403,7 @@ def palette_from_evidence(
     fills = _group(u.colors, ulab, flat_n, free, MIN_FLAT_PIXELS)
     fills = [g for g in fills if graded_n[g[2]].sum() < GRADIENT_SHARE * g[1]]
     fills = _drop_halos(fills, rim_n, lab)
+    del flat_n, graded_n, rim_n
     cand_colors = [g[0] for g in fills]
     cand_kind = ["fill"] * len(fills)
     cand_strength = [float(g[1]) for g in fills]
@@ -418,12 +420,14 @@ def palette_from_evidence(
             near_fill |= _same(u.colors, ulab, col, flab)
     free = (totals > 0) & ~near_fill & ~members_taken
     line_groups = _group(u.colors, ulab, line_n, free, MIN_LINE_PIXELS)
+    del line_n
     for col, strength, members in line_groups:
         cand_colors.append(col)
         cand_kind.append("line")
         cand_strength.append(float(strength))
         free[members] = False
     strokes = _group(u.colors, ulab, core_n, free, MIN_CORE_PIXELS)
+    del core_n
     for col, strength, _members in strokes:
         cand_colors.append(col)
         cand_kind.append("stroke")
@@ -456,7 +460,7 @@ def palette_from_evidence(
     colors, kinds = _drop_blends(colors, kinds, strength, lab)
 
     # Step 5: labels for every unique colour, then counts and shares.
-    del flat_n, core_n, line_n, graded_n, rim_n, free, near_fill, members_taken
+    del free, near_fill, members_taken
     plab = np.asarray(lab(colors), dtype=np.float64)
     labels = _noise_labels(u.colors, ulab, colors, plab)
     k = colors.shape[0]
@@ -505,8 +509,8 @@ def _lab_of_many(lab: _LabFn, colors: NDArray[np.uint8]) -> NDArray[np.floating]
 
 def _evidence_counts(
     pixels: NDArray[np.uint8], evidence_ok: NDArray[np.bool_] | None, inverse: NDArray[np.int32], totals: NDArray[np.int64]
-) -> tuple[NDArray[np.int32], ...]:
-    """Per unique colour: flat, core, line, graded and rim pixel counts (int32).
+) -> tuple[NDArray[np.integer], ...]:
+    """Per unique colour: flat, core, line, graded and rim pixel counts (see :func:`_narrowed`).
 
     ``totals`` are the pixels of each colour that count (alpha above 0).
 
@@ -570,14 +574,25 @@ def _evidence_counts(
                 for total, c in zip(out, counts):
                     total += c
     if not per_strip:
-        # One bit at a time: each count makes an int64 array as long as the colour list.
-        out = [count_bit(bit) for bit in range(n_bits)]
-    out = [c.astype(np.int32, copy=False) for c in out]
+        # Counted below one bit at a time (each count makes an int64 array as long
+        # as the colour list); the pixels that give evidence first, if not all do.
+        out = [np.zeros(0, np.int32)] * 5 + ([count_bit(5)] if n_bits == 6 else [])
     counted = totals if evidence_ok is None else out[5]
-    # Flat and core pixels are the rule in a chart: the exceptions were counted.
-    for exceptions in out[:2]:
-        np.subtract(counted, exceptions, out=exceptions, casting="unsafe")
-    return tuple(out[:5])
+    result = []
+    for bit in range(5):
+        counts = out[bit].astype(np.int32, copy=False) if per_strip else count_bit(bit)
+        out[bit] = None
+        if bit < 2:  # flat and core pixels are the rule in a chart: the exceptions were counted
+            np.subtract(counted, counts, out=counts, casting="unsafe")
+        result.append(_narrowed(counts))
+    return tuple(result)
+
+
+def _narrowed(counts: NDArray[np.int32]) -> NDArray[np.uint16] | NDArray[np.int32]:
+    """``counts`` (all >= 0) as uint16 when they fit: half the memory for a photograph's millions of colours."""
+    if counts.size == 0 or int(counts.max()) <= np.iinfo(np.uint16).max:
+        return counts.astype(np.uint16)
+    return counts
 
 
 def _pixel_evidence(

@@ -432,12 +432,16 @@ def heatmap_bands(
     lut = _overlay_lut(vmax)
     per_color = None
     if all(isinstance(m, IndexedImage) for m in (screen_rgb, delta_e)) and screen_rgb.index is delta_e.index:
-        # A pixel's colour depends only on its unique colour: paint each once.
-        idx = _levels(delta_e.values, vmax)
-        idx <<= 8
-        idx += faded_gray(screen_rgb.values)
-        per_color = IndexedImage(lut.take(idx), delta_e.index, (h, w), delta_e.runs)
-        del idx
+        # A pixel's colour depends only on its unique colour: paint each once
+        # (in steps, so that millions of colours make no large temporaries).
+        painted = np.empty(delta_e.values.shape[0], np.uint32)
+        for c0 in range(0, painted.size, STRIP_PIXELS):
+            part = slice(c0, c0 + STRIP_PIXELS)
+            idx = _levels(delta_e.values[part], vmax)
+            idx <<= 8
+            idx += faded_gray(screen_rgb.values[part])
+            painted[part] = lut.take(idx)
+        per_color = IndexedImage(painted, delta_e.index, (h, w), delta_e.runs)
 
     def bands() -> Iterator[NDArray[np.uint8]]:
         for y0, y1 in _bands(h, w):
