@@ -465,6 +465,7 @@ def write_check_outputs(report: CheckReport, out_dir: str | Path) -> dict[str, P
     if report.maps is None:
         raise InputError("the report has no pixel maps (check(..., keep_maps=False)); nothing to draw")
     maps = report.maps
+    release_freed_memory()
     icc = srgb_profile_bytes()
     height, width = maps.print_rgb.shape[:2]
     # The full-size pictures are written band by band (never held whole), the

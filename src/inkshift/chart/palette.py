@@ -93,6 +93,7 @@ from numpy.typing import ArrayLike, NDArray
 from inkshift.chart.unique import IndexedImage, UniqueColors, as_pixel_map, pack_colors, unique_colors
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import srgb_to_linear
+from inkshift.memory import release_freed_memory
 
 __all__ = [
     "Palette",
@@ -226,8 +227,9 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
-_LABEL_CHUNK = 1 << 18  # unique colours per step of the final labelling
+_LABEL_CHUNK = 1 << 17  # unique colours per step of the final labelling (one _nearest chunk for small palettes)
 _LAB_CHUNK = 1 << 16  # colours per call of the caller's Lab conversion when there are many
+_SORT_COUNT_SHARE = 8  # a chunk's evidence pixels are sorted when fewer than 1/8 of the colour count
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
 _EVIDENCE_THREADS = 2  # worker threads over strips and colour chunks (tuned on two cores)
 _PAIRS_PER_STEP = 1 << 20  # colour x palette pairs per step of the nearest-colour search
@@ -284,7 +286,7 @@ class Palette:
     shares: NDArray[np.float64]
     is_background: NDArray[np.bool_]
     kind: NDArray[np.str_]
-    labels: NDArray[np.int32]
+    labels: NDArray[np.int16]
     parents: NDArray[np.int64]
     mix: NDArray[np.float64]
 
@@ -467,7 +469,7 @@ def palette_from_evidence(
     sel = labels >= 0
     counts = np.bincount(labels[sel], weights=totals[sel], minlength=k).astype(np.int64)
     order = np.lexsort((np.arange(k), -counts))
-    remap = np.empty(k, np.int32)
+    remap = np.empty(k, np.int16)
     remap[order] = np.arange(k)
     labels[sel] = remap[labels[sel]]
     colors, plab, counts, kinds = colors[order], plab[order], counts[order], kinds[order]
@@ -502,9 +504,23 @@ def _lab_of_many(lab: _LabFn, colors: NDArray[np.uint8]) -> NDArray[np.floating]
     if colors.shape[0] <= _LAB_CHUNK:
         return np.asarray(lab(colors), dtype=np.float64)
     out = np.empty((colors.shape[0], 3), np.float32)
-    for s in range(0, colors.shape[0], _LAB_CHUNK):
+
+    def run(s: int) -> None:
         out[s : s + _LAB_CHUNK] = lab(colors[s : s + _LAB_CHUNK])
+
+    _each_chunk(run, colors.shape[0], _LAB_CHUNK)
     return out
+
+
+def _each_chunk(run: Callable[[int], None], n: int, chunk: int) -> None:
+    """Call ``run(start)`` for each chunk of ``n`` items, sharing them among the
+    worker threads (numpy releases the GIL inside its array loops)."""
+    starts = range(0, n, chunk)
+    if len(starts) > 1:
+        with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
+            list(pool.map(run, starts))
+    elif n:
+        run(0)
 
 
 def _evidence_counts(
@@ -560,7 +576,14 @@ def _evidence_counts(
         for c0 in chunks:
             part = flags[c0 : c0 + _COUNT_CHUNK] & m
             pick = (part == 0) if complement else (part != 0)
-            total += np.bincount(inverse[c0 : c0 + _COUNT_CHUNK][pick], minlength=n)
+            idx = inverse[c0 : c0 + _COUNT_CHUNK][pick]
+            del part, pick
+            if idx.size * _SORT_COUNT_SHARE < n:
+                # Few pixels: sorting them beats a count array as long as the colour list.
+                colours, k = np.unique(idx, return_counts=True)
+                total[colours] += k.astype(np.int32)
+            else:
+                total += np.bincount(idx, minlength=n)
         if complement:
             np.subtract(totals, total, out=total, casting="unsafe")  # counts fit int32 (< 2**31 pixels)
         return total
@@ -573,6 +596,7 @@ def _evidence_counts(
             if counts is not None:
                 for total, c in zip(out, counts):
                     total += c
+    release_freed_memory()  # the strips' temporaries, before the counts are made
     if not per_strip:
         # Counted below one bit at a time (each count makes an int64 array as long
         # as the colour list); the pixels that give evidence first, if not all do.
@@ -1051,12 +1075,7 @@ def _nearest(
         idx[s : s + chunk] = i_part
         dist[s : s + chunk] = d_part
 
-    starts = range(0, n, chunk)
-    if len(starts) > 1:
-        with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
-            list(pool.map(run, starts))
-    elif n:
-        run(0)
+    _each_chunk(run, n, chunk)
     return idx, dist
 
 
@@ -1206,16 +1225,20 @@ def _segment(
 
 def _noise_labels(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.floating], colors: NDArray[np.uint8], plab: NDArray[np.float64]
-) -> NDArray[np.int32]:
+) -> NDArray[np.int16]:
     """Step 5: palette index of every unique colour that is a palette colour or its noise, else OTHER.
 
     Each colour is labelled on its own, so the work runs in chunks of colours
     (a photograph has millions; the temporaries stay those of one chunk).
     """
-    labels = np.empty(ucolors.shape[0], np.int32)
-    for s in range(0, ucolors.shape[0], _LABEL_CHUNK):
+    # int16 holds every label: a palette has at most 3 * MAX_COLORS + 1 colours.
+    labels = np.empty(ucolors.shape[0], np.int16)
+
+    def run(s: int) -> None:
         part = slice(s, s + _LABEL_CHUNK)
         labels[part] = _noise_labels_part(ucolors[part], ulab[part], colors, plab)
+
+    _each_chunk(run, ucolors.shape[0], _LABEL_CHUNK)
     return labels
 
 

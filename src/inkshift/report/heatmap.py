@@ -97,8 +97,8 @@ HEAT_LUT_LEVELS = 4096
 """Steps of the ΔE00 -> colour look-up table (vmax/4095 apart: 0.005 ΔE00 at
 vmax 20, far below what an 8-bit colour can show)."""
 
-STRIP_PIXELS = 1 << 20
-"""Pixels per band processed at once; bounds the working memory (about 30 MB)."""
+STRIP_PIXELS = 1 << 19
+"""Pixels per band processed at once; bounds the working memory (about 15 MB)."""
 
 HATCH_DARK = (0, 0, 0)
 HATCH_LIGHT = (255, 255, 255)

@@ -254,7 +254,7 @@ def _preview(rgb: NDArray[np.uint8], box_w: int, box_h: int) -> Image.Image:
 
 
 _REDUCING_GAP = 2.0
-_REDUCE_BAND_PX = 1 << 20  # source pixels per band of the box reduction
+_REDUCE_BAND_PX = 1 << 19  # source pixels per band of the box reduction and of written pictures
 
 
 def _box_reduced(rgb: NDArray[np.uint8] | IndexedImage, factor: int) -> Image.Image:
