@@ -27,6 +27,7 @@ from typing import Callable
 import numpy as np
 from numpy.typing import NDArray
 
+from inkshift.chart.unique import rgbx_rows
 from inkshift.color.difference import delta_e_2000, delta_e_2000_over
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes, transform_colors
@@ -84,7 +85,7 @@ class PixelProof:
     """What a check keeps for every unique colour of an image, in compact types.
 
     A photograph has millions of unique colours, so a check keeps only what
-    its pixel maps and statistics need (12 bytes per colour against 87 for a
+    its pixel maps and statistics need (13 bytes per colour against 87 for a
     :class:`ColorProof`); the same computation as :func:`proof_colors`.
 
     Attributes
@@ -126,7 +127,7 @@ def screen_srgb8(colors: NDArray[np.uint8], source: Profile) -> NDArray[np.uint8
     colors = np.asarray(colors, dtype=np.uint8)
     if source is srgb_profile():
         return colors
-    out = np.empty((colors.shape[0], 3), np.uint8)
+    out = rgbx_rows(colors.shape[0])
     for s in range(0, colors.shape[0], _PROOF_CHUNK):
         out[s : s + _PROOF_CHUNK] = lab_to_srgb8(codes_to_lab(source, colors[s : s + _PROOF_CHUNK], Intent.RELATIVE))
     return out
@@ -257,7 +258,7 @@ def proof_pixels(
     print_lab = np.empty((n, 3), np.float32) if keep_print_lab else None
     delta_e = np.empty(n)
     out_of_gamut = np.empty(n, bool)
-    print_rgb = np.empty((n, 3), np.uint8)
+    print_rgb = rgbx_rows(n)  # drawn as pictures: IndexedImage gathers RGBX words
 
     def keep(part: slice, scr: NDArray[np.float64], side: _PrintSide) -> None:
         prt, delta_e[part], reached, print_rgb[part] = side
