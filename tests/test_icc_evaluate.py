@@ -30,6 +30,7 @@ from inkshift.icc.encoding import lab_from_8
 from inkshift.icc.evaluate import (
     absolute_white,
     available_tables,
+    codes_to_lab,
     device_to_lab,
     device_to_xyz,
     lab_to_device,
@@ -407,3 +408,38 @@ def test_xyz_device_space_identity_profile() -> None:
     device = xyz * 32768.0 / 65535.0
     np.testing.assert_allclose(device_to_xyz(profile, device), xyz, atol=2e-5)
     np.testing.assert_allclose(xyz_to_device(profile, xyz), device, atol=2e-5)
+
+
+@pytest.mark.parametrize(
+    "path, channels",
+    [
+        (None, 3),  # LittleCMS's built-in sRGB (matrix/TRC, parametric curves)
+        ("/usr/share/color/icc/ghostscript/sgray.icc", 1),  # gray TRC
+        ("/usr/share/color/icc/ghostscript/default_cmyk.icc", 4),  # LUT-based: the plain path
+    ],
+)
+@pytest.mark.parametrize("intent", [Intent.RELATIVE, Intent.ABSOLUTE])
+def test_codes_to_lab_equals_device_to_lab_bit_for_bit(path, channels, intent):
+    # Reference: the evaluator's own float path on codes / 255; the look-up of
+    # tabulated curves must not change a single bit.
+    profile = read_profile(srgb_profile_bytes()) if path is None else read_profile(require_file(path))
+    codes = np.random.default_rng(channels).integers(0, 256, (5000, channels), dtype=np.uint8)
+    codes[:256, 0] = np.arange(256)  # every code of the first channel
+    want = device_to_lab(profile, codes / 255.0, intent)
+    np.testing.assert_array_equal(codes_to_lab(profile, codes, intent), want)
+    with pytest.raises(InputError):
+        codes_to_lab(profile, codes.astype(np.float64), intent)
+
+
+def test_two_entry_linear_table_is_an_exact_identity():
+    # lut16 writers put the table 0 -> 0, 1 -> 1 where no curve is wanted
+    # (ICC.1:2022 10.10); interpolating it returns x exactly.
+    ramp = Curve("table", table=np.array([0.0, 1.0]))
+    assert ramp.is_identity and Curve("identity").is_identity
+    assert not Curve("table", table=np.array([0.0, 0.5, 1.0])).is_identity
+    assert not Curve("table", table=np.array([1.0, 0.0])).is_identity
+    x = np.random.default_rng(2).random(10_000)
+    x[:3] = (0.0, 1.0, 0.5)
+    table_path = Curve("table", table=np.array([0.0, 0.5, 1.0]))  # a 3-entry ramp is interpolated
+    np.testing.assert_array_equal(eval_curve(ramp, x), x)
+    np.testing.assert_allclose(eval_curve(table_path, x), x, atol=1e-15)

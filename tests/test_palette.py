@@ -265,3 +265,32 @@ def test_sparse_evidence_equals_dense_evidence(name, jpeg, tmp_path):
     dense = _pixel_evidence_dense(pixels, None)
     for a, b in zip(sparse, dense):
         np.testing.assert_array_equal(a, b)
+
+
+@pytest.mark.parametrize("with_alpha", [False, True])
+def test_evidence_counted_through_flags_equals_counting_per_strip(chart, monkeypatch, with_alpha):
+    # Images with many colours (photographs) keep one byte of flags per pixel
+    # and count per colour at the end, through the sparser side of each flag,
+    # by sorting or by a colour-long count; charts count strip by strip. All
+    # routes, and pixels given as an IndexedImage, must give the same counts.
+    import inkshift.chart.palette as palette
+    from inkshift.chart.unique import IndexedImage
+
+    jpeg = _jpeg(chart, 2)  # thousands of colours
+    u = unique_colors(jpeg)
+    alpha = None
+    if with_alpha:
+        alpha = np.full(jpeg.shape[:2], 255, np.uint8)
+        alpha[:40, :] = 0
+        alpha[40:60, :] = 128
+    reference = palette.palette_evidence(jpeg, u, alpha=alpha)
+    assert len(u) <= palette._STRIP_PIXELS  # the reference counts strip by strip
+    for sort_share in (0, 10**9):  # always sort / never sort
+        monkeypatch.setattr(palette, "_SORT_COUNT_SHARE", sort_share)
+        monkeypatch.setattr(palette, "_COUNT_CHUNK", 4096)  # several chunks per flag
+        # More colours than the strip threshold: flags (other strip heights, too).
+        monkeypatch.setattr(palette, "_STRIP_PIXELS", len(u) - 1)
+        pixels = IndexedImage(u.colors, u.inverse, u.shape)
+        flagged = palette.palette_evidence(pixels, u, alpha=alpha)
+        for field in ("totals", "flat", "core", "line", "graded", "rim"):
+            np.testing.assert_array_equal(getattr(flagged, field), getattr(reference, field), err_msg=field)

@@ -8,7 +8,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 
-from inkshift.chart.unique import UniqueColors, expand, pack_colors, unique_colors
+from inkshift.chart.unique import IndexedImage, UniqueColors, expand, pack_colors, pixel_runs, rgbx_rows, unique_colors
 
 
 def _reference(pixels: np.ndarray):
@@ -116,3 +116,49 @@ def test_expand_by_runs_equals_the_plain_gather():
     assert runs is not None
     values = np.arange(len(u), dtype=np.float32) * 1.5
     np.testing.assert_array_equal(expand(values, u.inverse, img.shape[:2], runs=runs), expand(values, u.inverse, img.shape[:2]))
+
+
+def _stripes(rng: np.random.Generator, h: int, w: int) -> np.ndarray:
+    """A chart-like image: long runs of a few colours, with some noise pixels."""
+    img = np.repeat(rng.integers(0, 6, (h, w // 9 + 1, 3), dtype=np.uint8) * 40, 9, axis=1)[:, :w]
+    noisy = rng.random((h, w)) < 0.05
+    img[noisy] = rng.integers(0, 256, (int(noisy.sum()), 3), dtype=np.uint8)
+    return np.ascontiguousarray(img)
+
+
+@pytest.mark.parametrize("with_runs", [False, True])
+def test_indexed_image_rows_equal_the_expanded_map(with_runs):
+    # Reference: the per-pixel arrays (the image itself and values[inverse]).
+    rng = np.random.default_rng(8)
+    img = _stripes(rng, 41, 67)
+    u = unique_colors(img)
+    runs = pixel_runs(u.inverse) if with_runs else None
+    assert (runs is not None) == with_runs
+    rgb = IndexedImage(u.colors, u.inverse, u.shape, runs)
+    per_colour = rng.random(len(u))
+    values = IndexedImage(per_colour, u.inverse, u.shape, runs)
+    want_values = per_colour[u.inverse].reshape(u.shape)
+    assert rgb.shape == img.shape and values.shape == u.shape
+    np.testing.assert_array_equal(np.asarray(rgb), img)
+    for y0 in range(0, 41, 6):
+        for y1 in (y0, y0 + 1, y0 + 7, 41, 60):
+            np.testing.assert_array_equal(rgb[y0:y1], img[y0:y1])
+            np.testing.assert_array_equal(values[y0:y1], want_values[y0:y1])
+    with pytest.raises(TypeError):
+        rgb[3]
+
+
+def test_rgbx_rows_are_gathered_without_a_packed_copy():
+    rng = np.random.default_rng(9)
+    img = _stripes(rng, 20, 30)
+    u = unique_colors(img)
+    # unique_colors lays RGB out as RGBX words; a copy into a plain array is packed.
+    assert u.colors.strides == (4, 1)
+    direct = IndexedImage(u.colors, u.inverse, u.shape)
+    plain = IndexedImage(np.ascontiguousarray(u.colors), u.inverse, u.shape)
+    assert np.shares_memory(direct._packed, u.colors)
+    assert not np.shares_memory(plain._packed, u.colors)
+    np.testing.assert_array_equal(np.asarray(direct), img)
+    np.testing.assert_array_equal(np.asarray(plain), img)
+    rows = rgbx_rows(5)
+    assert rows.shape == (5, 3) and rows.base.shape == (5, 4) and not rows.any()
