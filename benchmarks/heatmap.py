@@ -7,13 +7,18 @@ its rate in megapixels per second, and the process's peak resident memory
 above the inputs (Linux /proc: VmHWM after resetting it through clear_refs),
 with ratios to two floors: the time Pillow takes just to copy the input into an
 image, and the bytes of the output image itself; then the time of the
-side-by-side previews of the same input.
+side-by-side previews of the same input; then the heat map written to PNG
+band by band (:func:`inkshift.report.heatmap.heatmap_bands` and
+:func:`inkshift.report.png.write_png_bands`, what ``inkshift check`` does)
+against Pillow saving the whole picture at zlib level 1, with the peak memory
+of each above the inputs.
 """
 
 from __future__ import annotations
 
 import argparse
 import statistics
+import tempfile
 import time
 import tracemalloc
 from pathlib import Path
@@ -21,7 +26,8 @@ from pathlib import Path
 import numpy as np
 from PIL import Image
 
-from inkshift.report.heatmap import heatmap_overlay
+from inkshift.report.heatmap import heatmap_bands, heatmap_overlay
+from inkshift.report.png import write_png_bands
 from inkshift.report.sheets import side_by_side
 
 
@@ -103,6 +109,23 @@ def main() -> None:
     side_by_side(rgb, rgb, [])
     t_sbs = time.perf_counter() - t0
     print(f"side_by_side previews of the same input (LANCZOS to 2400 px): {t_sbs:.2f} s; ratio to floor {t_sbs / tf:.1f}x")
+
+    with tempfile.TemporaryDirectory() as tmp:
+        figures = {}
+        for label in ("Pillow, whole picture, level 1", "band by band"):
+            base_kb = _status_kb("VmRSS")
+            _reset_peak()
+            t0 = time.perf_counter()
+            if label == "band by band":
+                width, height, bands = heatmap_bands(rgb, de, oog)
+                write_png_bands(Path(tmp) / "bands.png", width, height, bands)
+            else:
+                heatmap_overlay(rgb, de, oog).save(Path(tmp) / "pillow.png", compress_level=1)
+            figures[label] = (time.perf_counter() - t0, (_status_kb("VmHWM") - base_kb) / 1024)
+        for label, (secs, mb) in figures.items():
+            print(f"heat map drawn and written as PNG, {label}: {secs:.2f} s, peak RSS above inputs {mb:.0f} MB")
+        (t_pil, m_pil), (t_band, m_band) = figures.values()
+        print(f"band by band against Pillow: time ratio {t_band / t_pil:.2f}, memory ratio {m_band / max(m_pil, 1e-9):.2f}")
 
 
 if __name__ == "__main__":

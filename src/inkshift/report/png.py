@@ -10,7 +10,8 @@ subtraction per byte in numpy, and on the project's pictures it compresses
 about as well as Pillow's adaptive filtering at a fraction of the time.
 zlib runs at level 1 with the run-length strategy (Z_RLE). Measured on
 24-megapixel outputs: a chart's simulated print in 0.24 s (2.1 MB) against
-0.5 s with Pillow at level 1; a photograph's in 1.2 s (50 MB) against 2.9 s.
+0.50 s (0.9 MB) with Pillow's save at level 1; a photograph's in 1.2 s (50 MB)
+against 4.2 s (51 MB). benchmarks/heatmap.py compares the heat map both ways.
 """
 
 from __future__ import annotations
