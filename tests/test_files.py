@@ -6,7 +6,7 @@ import pytest
 from PIL import Image
 
 from inkshift.errors import InputError
-from inkshift.files import output_folder
+from inkshift.files import output_folder, write_text_atomic
 
 
 def test_failure_removes_written_files_and_created_folder(tmp_path):
@@ -40,3 +40,12 @@ def test_output_path_that_is_a_file_is_refused(tmp_path):
     with pytest.raises(InputError, match="not a folder"):
         with output_folder(blocker):
             pass
+
+
+def test_written_files_get_the_permissions_of_a_plainly_created_file(tmp_path):
+    # Reference: a file made by open() in the same folder under the same umask;
+    # the temporary file behind each atomic write is private until then.
+    plain = tmp_path / "plain.txt"
+    plain.write_text("x")
+    written = write_text_atomic(tmp_path / "atomic.txt", "x")
+    assert (written.stat().st_mode & 0o777) == (plain.stat().st_mode & 0o777)

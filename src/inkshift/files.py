@@ -29,15 +29,36 @@ __all__ = [
 ]
 
 
+def _new_file_mode() -> int:
+    """The permissions ``open()`` gives a new file: 0o666 less the process umask."""
+    try:
+        for line in Path("/proc/self/status").read_text().splitlines():
+            if line.startswith("Umask:"):
+                return 0o666 & ~int(line.split()[1], 8)
+    except (OSError, ValueError):
+        pass
+    mask = os.umask(0o022)  # read by setting; done once, at import, before any thread writes
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
+_NEW_FILE_MODE = _new_file_mode()
+
+
 @contextmanager
 def atomic_path(path: str | Path) -> Iterator[Path]:
-    """Yield a temporary path beside ``path``; rename it to ``path`` if the block succeeds."""
+    """Yield a temporary path beside ``path``; rename it to ``path`` if the block succeeds.
+
+    The file ends with the permissions a plainly created file would have
+    (``mkstemp`` makes its files private to the owner).
+    """
     path = Path(path)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
     os.close(fd)
     tmp_path = Path(tmp)
     try:
         yield tmp_path
+        os.chmod(tmp_path, _NEW_FILE_MODE)
         os.replace(tmp_path, path)
     except BaseException:
         tmp_path.unlink(missing_ok=True)
