@@ -19,7 +19,6 @@ colorimetric intent implies the paper view.
 
 from __future__ import annotations
 
-from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Callable
@@ -28,6 +27,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from inkshift.chart.unique import rgbx_rows
+from inkshift.chunks import for_each_chunk
 from inkshift.color.difference import delta_e_2000, delta_e_2000_over
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes, transform_colors
@@ -45,7 +45,6 @@ _PROOF_CHUNK = 1 << 14
 """Colours per step of the float evaluation: it bounds the temporaries, and
 small steps stay in cache. Measured with two threads on 2 million random
 colours: 2**17 took 4.2 s and 142 MiB, 2**14 2.8 s and 49 MiB, 2**12 4.5 s."""
-_PROOF_THREADS = 2  # worker threads over the chunks (the machines this was tuned on have two cores)
 
 
 @dataclass(frozen=True)
@@ -311,11 +310,5 @@ def _proof_parts(
     # of the float temporaries (the evaluators make several per colour). numpy
     # releases the GIL inside its array loops, so with many colours two threads
     # share the chunks (measured below in benchmarks/check_command.py).
-    starts = range(0, n, _PROOF_CHUNK)
-    if len(starts) > 1:
-        with ThreadPoolExecutor(max_workers=_PROOF_THREADS) as pool:
-            list(pool.map(run, starts))
-    else:
-        for s in starts:
-            run(s)
+    for_each_chunk(run, n, _PROOF_CHUNK)
     return device

@@ -91,6 +91,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from inkshift.chart.unique import IndexedImage, UniqueColors, as_pixel_map, pack_colors, unique_colors
+from inkshift.chunks import WORKERS, for_each_chunk
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import srgb_to_linear
 from inkshift.memory import release_freed_memory
@@ -231,7 +232,6 @@ _LABEL_CHUNK = 1 << 17  # unique colours per step of the final labelling (one _n
 _LAB_CHUNK = 1 << 16  # colours per call of the caller's Lab conversion when there are many
 _SORT_COUNT_SHARE = 8  # a chunk's evidence pixels are sorted when fewer than 1/8 of the colour count
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
-_EVIDENCE_THREADS = 2  # worker threads over strips and colour chunks (tuned on two cores)
 _PAIRS_PER_STEP = 1 << 20  # colour x palette pairs per step of the nearest-colour search
 _SPARSE_SHARE = 0.2  # colour changes between neighbours per pixel above which evidence is computed densely
 # Two colours within d ΔE00 are within d * (_DE76_BASE + _DE76_PER_CHROMA * (C1 + C2))
@@ -508,19 +508,8 @@ def _lab_of_many(lab: _LabFn, colors: NDArray[np.uint8]) -> NDArray[np.floating]
     def run(s: int) -> None:
         out[s : s + _LAB_CHUNK] = lab(colors[s : s + _LAB_CHUNK])
 
-    _each_chunk(run, colors.shape[0], _LAB_CHUNK)
+    for_each_chunk(run, colors.shape[0], _LAB_CHUNK)
     return out
-
-
-def _each_chunk(run: Callable[[int], None], n: int, chunk: int) -> None:
-    """Call ``run(start)`` for each chunk of ``n`` items, sharing them among the
-    worker threads (numpy releases the GIL inside its array loops)."""
-    starts = range(0, n, chunk)
-    if len(starts) > 1:
-        with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
-            list(pool.map(run, starts))
-    elif n:
-        run(0)
 
 
 def _evidence_counts(
@@ -591,7 +580,7 @@ def _evidence_counts(
     # Strips are independent (each writes its own rows of flags), and numpy
     # releases the GIL inside its array operations: two threads share them.
     out = [np.zeros(n if per_strip else 0, np.int64) for _ in range(n_bits)]
-    with ThreadPoolExecutor(max_workers=_EVIDENCE_THREADS) as pool:
+    with ThreadPoolExecutor(max_workers=WORKERS) as pool:
         for counts in pool.map(strip, range(0, h, step)):
             if counts is not None:
                 for total, c in zip(out, counts):
@@ -1075,7 +1064,7 @@ def _nearest(
         idx[s : s + chunk] = i_part
         dist[s : s + chunk] = d_part
 
-    _each_chunk(run, n, chunk)
+    for_each_chunk(run, n, chunk)
     return idx, dist
 
 
@@ -1238,7 +1227,7 @@ def _noise_labels(
         part = slice(s, s + _LABEL_CHUNK)
         labels[part] = _noise_labels_part(ucolors[part], ulab[part], colors, plab)
 
-    _each_chunk(run, ucolors.shape[0], _LABEL_CHUNK)
+    for_each_chunk(run, ucolors.shape[0], _LABEL_CHUNK)
     return labels
 
 

@@ -30,12 +30,12 @@ marking and the look-up share their chunks between two threads.
 
 from __future__ import annotations
 
-from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
-from typing import Callable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
+
+from inkshift.chunks import for_each_chunk
 
 __all__ = [
     "UniqueColors",
@@ -55,7 +55,6 @@ MAX_TABLE_BITS = 24
 RGB cube. Larger keys are compacted first (see the module docstring)."""
 
 _CHUNK = 1 << 20  # pixels per step of the chunked loops (4 MB of keys)
-_THREADS = 2  # worker threads over the chunks (the machines this was tuned on have two cores)
 _SORT_BELOW = 1 << 16  # fewer keys than this are ranked by np.unique's sort
 _RUN_GAIN = 4  # use the run route when runs are at most a quarter of the pixels
 
@@ -151,7 +150,7 @@ def _rank_in_place(keys: NDArray, bits: int) -> tuple[NDArray[np.int64], NDArray
         # Threads may set the same entry at once; every write stores True.
         present[keys[s : s + _CHUNK]] = True
 
-    _each_chunk(mark, keys.size)
+    for_each_chunk(mark, keys.size, _CHUNK)
     distinct = np.flatnonzero(present)
     present = None  # 16 MB, not needed for the look-up
     table = np.zeros(1 << bits, dtype=np.int32)
@@ -164,20 +163,8 @@ def _rank_in_place(keys: NDArray, bits: int) -> tuple[NDArray[np.int64], NDArray
         # never changes a value.
         np.take(table, keys[s : s + _CHUNK], out=ranks[s : s + _CHUNK], mode="clip")
 
-    _each_chunk(rank, keys.size)
+    for_each_chunk(rank, keys.size, _CHUNK)
     return distinct, ranks
-
-
-def _each_chunk(run: Callable[[int], None], n: int) -> None:
-    """Call ``run(start)`` for each chunk of :data:`_CHUNK` of ``n`` items in two
-    threads (numpy releases the GIL inside its array loops; each chunk has its own
-    slice of the output)."""
-    starts = range(0, n, _CHUNK)
-    if len(starts) > 1:
-        with ThreadPoolExecutor(max_workers=_THREADS) as pool:
-            list(pool.map(run, starts))
-    elif n:
-        run(0)
 
 
 def _rank(keys: NDArray[np.uint32], bits: int) -> tuple[NDArray[np.uint32], NDArray[np.int32]]:
