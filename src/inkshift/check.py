@@ -1,9 +1,10 @@
 """The main job: soft-proof a chart image against an output profile.
 
-:func:`check` loads the image, proofs every unique colour once
-(:func:`inkshift.proof.proof_colors`), maps the results back to pixels,
-finds the chart's palette and judges which palette colours shift, leave the
-gamut or merge. :func:`write_check_outputs` writes the pictures and
+:func:`check` loads the image, finds its unique colours and the chart's
+palette, proofs every unique colour once (:func:`inkshift.proof.proof_pixels`;
+the palette colours in full with :func:`inkshift.proof.proof_colors`), keeps
+the per-pixel maps per colour (:class:`~inkshift.chart.unique.IndexedImage`)
+and judges which palette colours shift, leave the gamut or merge. :func:`write_check_outputs` writes the pictures and
 report.json atomically.
 """
 
@@ -156,6 +157,10 @@ def shipped_in_use(outputs: list[ProfileInfo], gray: Any = None) -> list[str]:
     return names
 
 
+_PERCENTILE_BINS = 1 << 16  # histogram bins of weighted_percentile: a photograph's millions of values leave ~100 a bin
+_STATS_CHUNK = 1 << 20  # colours per step of the pixel-weighted statistics
+
+
 def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], share: float) -> float:
     """Return the smallest value with at least ``share`` of the pixels at or below it.
 
@@ -168,9 +173,9 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
     counts = np.asarray(counts)
     target = share * float(counts.sum(dtype=np.float64))
     lo, hi = float(values.min()), float(values.max())
-    if hi > lo:
+    scale = _PERCENTILE_BINS / (hi - lo) if hi > lo else np.inf
+    if np.isfinite(scale):  # else one value, or a span too wide or narrow to bin: sort them all
         # Bins are monotone in the value, so every value of a lower bin is smaller.
-        scale = _PERCENTILE_BINS / (hi - lo)
 
         def bins_of(part: slice) -> NDArray[np.int32]:
             bins = ((values[part] - lo) * scale).astype(np.int32)
@@ -193,8 +198,6 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
     return float(values[order[k]])
 
 
-_PERCENTILE_BINS = 1 << 16
-_STATS_CHUNK = 1 << 20  # colours per step of the pixel-weighted statistics
 
 
 def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.integer]) -> Summary:

@@ -17,15 +17,17 @@ WORKERS = 2
 two cores (benchmarks/check_command.py)."""
 
 
-def for_each_chunk(run: Callable[[int], None], n: int, chunk: int) -> None:
+def for_each_chunk(run: Callable[[int], None], n: int, chunk: int, *, threads: bool = True) -> None:
     """Call ``run(start)`` for the chunks ``start = 0, chunk, 2 * chunk, ...`` of ``n`` items.
 
-    With more than one chunk they are shared among :data:`WORKERS` threads, so
+    With more than one chunk they are shared among :data:`WORKERS` threads
+    (unless ``threads`` is False: a caller already running in a worker), so
     ``run`` must write only its own chunk's share of any output.
     """
     starts = range(0, n, chunk)
-    if len(starts) > 1:
+    if threads and len(starts) > 1:
         with ThreadPoolExecutor(max_workers=WORKERS) as pool:
             list(pool.map(run, starts))
-    elif n:
-        run(0)
+    else:
+        for s in starts:
+            run(s)

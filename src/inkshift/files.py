@@ -58,7 +58,10 @@ def atomic_path(path: str | Path) -> Iterator[Path]:
     tmp_path = Path(tmp)
     try:
         yield tmp_path
-        os.chmod(tmp_path, _NEW_FILE_MODE)
+        try:
+            os.chmod(tmp_path, _NEW_FILE_MODE)
+        except OSError:
+            pass  # file systems without Unix permissions (vfat, some network mounts)
         os.replace(tmp_path, path)
     except BaseException:
         tmp_path.unlink(missing_ok=True)
@@ -122,9 +125,9 @@ def _remove_empty(path: Path) -> None:
 class OutputFolder:
     """A folder that a command writes its files into, remembering what it wrote.
 
-    With ``workers`` > 0, :meth:`image` can hand a picture to a worker thread
-    (``background=True``): PNG encoding releases the GIL, so the next picture
-    can be drawn while the last one is written.
+    With ``workers`` > 0, :meth:`image` and :meth:`file` can hand a write to a
+    worker thread (``background=True``): PNG encoding releases the GIL, so the
+    next picture can be drawn while the last one is written.
     """
 
     def __init__(self, path: Path, workers: int = 0) -> None:

@@ -84,8 +84,8 @@ class PixelProof:
     """What a check keeps for every unique colour of an image, in compact types.
 
     A photograph has millions of unique colours, so a check keeps only what
-    its pixel maps and statistics need (13 bytes per colour against 87 for a
-    :class:`ColorProof`); the same computation as :func:`proof_colors`.
+    its pixel maps and statistics need (13 bytes per colour against about 70
+    for a :class:`ColorProof`); the same computation as :func:`proof_colors`.
 
     Attributes
     ----------

@@ -228,7 +228,7 @@ _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in 
 _DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
-_LABEL_CHUNK = 1 << 17  # unique colours per step of the final labelling (one _nearest chunk for small palettes)
+_LABEL_CHUNK = 1 << 17  # unique colours per step of the final labelling
 _LAB_CHUNK = 1 << 16  # colours per call of the caller's Lab conversion when there are many
 _SORT_COUNT_SHARE = 8  # a chunk's evidence pixels are sorted when fewer than 1/8 of the colour count
 _COUNT_CHUNK = 1 << 23  # pixels per step when counting evidence per colour
@@ -278,6 +278,9 @@ class Palette:
     mix
         ``(N,)`` float: for blends the fraction of ``parents[:, 0]`` in encoded
         device values (``color ≈ mix * p0 + (1 - mix) * p1``), else NaN.
+        Without blends (``extract_palette(..., blends=False)``) ``parents`` and
+        ``mix`` are read-only views of -1 and NaN; :func:`label_blends` returns
+        a palette with real arrays.
     """
 
     colors: NDArray[np.uint8]
@@ -310,7 +313,10 @@ def extract_palette(
     pixels
         ``(H, W, C)`` uint8 device values (C = 1, 3 or 4).
     lab
-        ``lab(colors (M, C) uint8) -> (M, 3)`` CIELAB; the caller's screen conversion.
+        ``lab(colors (M, C) uint8) -> (M, 3)`` CIELAB; the caller's screen
+        conversion. With many colours it is called on chunks, from two threads
+        at once, and its results are kept in float32 (ample for telling drawn
+        colours apart; differences are computed in float64).
     alpha
         ``(H, W)`` uint8 or None. Pixels with alpha 0 are ignored; partly
         transparent pixels are counted but give no spatial evidence.
@@ -342,14 +348,15 @@ class PaletteEvidence:
     Attributes
     ----------
     totals
-        Pixels of each colour that count (alpha above 0), int64.
+        Pixels of each colour that count (alpha above 0): ``unique.counts``
+        when there is no alpha.
     flat, core, line, graded, rim
         Pixels of each colour with that evidence (module docstring, step 1),
         uint16 where every count fits, else int32; ``rim`` counts flat pixels
         within :data:`HALO_REACH` of an edge.
     """
 
-    totals: NDArray[np.int64]
+    totals: NDArray[np.integer]
     flat: NDArray[np.integer]
     core: NDArray[np.integer]
     line: NDArray[np.integer]
@@ -839,7 +846,7 @@ def _near(mask: NDArray[np.bool_], reach: int) -> NDArray[np.bool_]:
     return out
 
 
-def _drop_halos(groups: list[_Group], rim_n: NDArray[np.int64], lab: _LabFn) -> list[_Group]:
+def _drop_halos(groups: list[_Group], rim_n: NDArray[np.integer], lab: _LabFn) -> list[_Group]:
     """Drop fill groups that are compression halos or wide blends of stronger fills.
 
     A group whose flat pixels lie almost all (:data:`HALO_RIM_SHARE`) within
@@ -900,8 +907,8 @@ def _run_lengths(joined: NDArray[np.bool_], axis: int) -> NDArray[np.int32]:
 
 def _group(
     colors: NDArray[np.uint8],
-    ulab: NDArray[np.float64],
-    evidence: NDArray[np.int64],
+    ulab: NDArray[np.floating],
+    evidence: NDArray[np.integer],
     free: NDArray[np.bool_],
     minimum: int,
 ) -> list[_Group]:
@@ -1023,7 +1030,7 @@ def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> N
 
 
 def _nearest(
-    lab_a: NDArray[np.float64], lab_b: NDArray[np.float64], within: float | None = None
+    lab_a: NDArray[np.floating], lab_b: NDArray[np.float64], within: float | None = None, *, threads: bool = True
 ) -> tuple[NDArray[np.int32], NDArray[np.float64]]:
     """Nearest of ``lab_b`` for each of ``lab_a`` by CIEDE2000.
 
@@ -1064,7 +1071,7 @@ def _nearest(
         idx[s : s + chunk] = i_part
         dist[s : s + chunk] = d_part
 
-    for_each_chunk(run, n, chunk)
+    for_each_chunk(run, n, chunk, threads=threads)
     return idx, dist
 
 
@@ -1234,7 +1241,7 @@ def _noise_labels(
 def _noise_labels_part(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.floating], colors: NDArray[np.uint8], plab: NDArray[np.float64]
 ) -> NDArray[np.int32]:
-    idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E)
+    idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E, threads=False)  # runs in a worker already
     labels = np.where(dist <= NOISE_DELTA_E, idx, np.int32(OTHER))
     del idx, dist
     # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).

@@ -207,7 +207,7 @@ def unique_colors(pixels: ArrayLike) -> UniqueColors:
     -------
     UniqueColors
         Equal to ``np.unique(pixels.reshape(-1, C), axis=0, return_inverse=True,
-        return_counts=True)``, in the same order.
+        return_counts=True)``, in the same order (counts as int32 under 2**31 pixels).
 
     Notes
     -----
@@ -275,10 +275,12 @@ def _rank_wide(keys: NDArray[np.uint32]) -> tuple[NDArray[np.uint32], NDArray[np
 
 @dataclass(frozen=True)
 class PixelRuns:
-    """Runs of equal colour indices in row-major pixel order: ``colors[k]`` repeated ``lengths[k]`` times."""
+    """Runs of equal colour indices in row-major pixel order: ``colors[k]`` repeated
+    ``lengths[k]`` times, ending before pixel ``ends[k]``."""
 
     colors: NDArray[np.int32]
     lengths: NDArray[np.intp]
+    ends: NDArray[np.intp]
 
 
 def pixel_runs(inverse: ArrayLike) -> PixelRuns | None:
@@ -291,7 +293,8 @@ def pixel_runs(inverse: ArrayLike) -> PixelRuns | None:
         return None
     starts = np.flatnonzero(change)
     del change
-    return PixelRuns(colors=inverse[starts], lengths=np.diff(np.append(starts, inverse.size)))
+    ends = np.append(starts[1:], inverse.size)
+    return PixelRuns(colors=inverse[starts], lengths=ends - starts, ends=ends)
 
 
 def expand(
@@ -354,7 +357,6 @@ class IndexedImage:
         # The runs of the index (:func:`pixel_runs`), when given: a chart's rows
         # are then spread run by run, several times faster than a gather.
         self.runs = runs
-        self._run_ends = None if runs is None else np.cumsum(runs.lengths)
         # 8-bit RGB is gathered as one uint32 per colour: a one-dimensional take
         # of 4-byte items is 2-3 times faster than taking 3-byte rows.
         self._packed: NDArray[np.uint32] | None = None
@@ -367,10 +369,12 @@ class IndexedImage:
 
     @property
     def dtype(self) -> np.dtype:
+        """The dtype of the values (and of every expanded band)."""
         return self.values.dtype
 
     @property
     def ndim(self) -> int:
+        """2 for a map of scalars, 3 for one of vectors (RGB)."""
         return len(self.shape)
 
     def __len__(self) -> int:
@@ -401,7 +405,7 @@ class IndexedImage:
         p0, p1 = y0 * w, y1 * w
         if self.runs is None or p1 <= p0:
             return expand(values, self.index[p0:p1], (y1 - y0, w))
-        ends = self._run_ends
+        ends = self.runs.ends
         r0 = int(np.searchsorted(ends, p0, side="right"))
         r1 = int(np.searchsorted(ends, p1 - 1, side="right")) + 1
         lengths = self.runs.lengths[r0:r1].copy()
@@ -411,6 +415,7 @@ class IndexedImage:
         return out.reshape((y1 - y0, w) + values.shape[1:])
 
     def __array__(self, dtype: np.dtype | None = None, copy: bool | None = None) -> NDArray:
+        # Expanding always makes a new array, whatever ``copy`` asks.
         out = self._expand(0, self.shape[0])
         return out if dtype is None else out.astype(dtype, copy=False)
 

@@ -3,13 +3,13 @@
 - :func:`heatmap_overlay` and :func:`scalar_map` (in :mod:`inkshift.report.heatmap`):
   full-resolution maps in the project's heat scale with one shared legend.
 - :class:`Swatch`, :func:`side_by_side` and :func:`swatch_sheet` (in
-  :mod:`inkshift.report.sheets`): previews and labelled swatch pairs;
-  :func:`rgb_image` turns a full-size map into a picture band by band.
-- :func:`heatmap_bands`, :func:`rgb_bands` and :func:`write_png_bands` (in
-  :mod:`inkshift.report.png`): full-size pictures written to PNG band by band,
-  never held whole.
+  :mod:`inkshift.report.sheets`): previews and labelled swatch pairs.
+- Full-size pictures written to PNG band by band, never held whole:
+  :func:`heatmap_bands` (heat map) and :func:`rgb_bands` (any RGB map, in
+  :mod:`inkshift.report.sheets`) give the bands, :func:`write_png_bands` (in
+  :mod:`inkshift.report.png`) writes them.
 
-Each function returns a Pillow image; callers save it with
+The other functions return Pillow images; callers save them with
 :func:`inkshift.files.save_image_atomic`.
 """
 
@@ -25,7 +25,7 @@ from inkshift.report.heatmap import (
     scalar_map,
 )
 from inkshift.report.png import write_png_bands
-from inkshift.report.sheets import Swatch, rgb_bands, rgb_image, side_by_side, swatch_sheet
+from inkshift.report.sheets import Swatch, rgb_bands, side_by_side, swatch_sheet
 
 __all__ = [
     "heatmap_overlay",
@@ -34,7 +34,6 @@ __all__ = [
     "write_png_bands",
     "scalar_map",
     "legend_strip",
-    "rgb_image",
     "Swatch",
     "side_by_side",
     "swatch_sheet",

@@ -179,7 +179,8 @@ class CheckReport:
     unique: Any = field(default=None, repr=False)
     """The image's unique colours (:class:`inkshift.chart.unique.UniqueColors`)."""
     proof: Any = field(default=None, repr=False)
-    """Per-unique-colour results (:class:`inkshift.proof.ColorProof`)."""
+    """Per-unique-colour results (:class:`inkshift.proof.PixelProof`: ΔE00, out-of-gamut
+    flag, print sRGB, and print CIELAB when asked for)."""
     source_profile: Any = field(default=None, repr=False)
     """The image's profile as used (:class:`inkshift.icc.read.Profile`)."""
     output: Any = field(default=None, repr=False)

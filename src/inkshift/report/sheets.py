@@ -25,7 +25,6 @@ from inkshift.chart.unique import IndexedImage, as_pixel_map
 from inkshift.errors import InputError
 
 __all__ = [
-    "rgb_image",
     "rgb_bands",
     "Swatch",
     "side_by_side",
@@ -272,14 +271,6 @@ def _box_reduced(rgb: NDArray[np.uint8] | IndexedImage, factor: int) -> Image.Im
             part = Image.fromarray(np.ascontiguousarray(rgb[y0:y1]), mode="RGB")
         out.paste(part.reduce(factor) if factor > 1 else part, (0, y0 // factor))
     return out
-
-
-def rgb_image(rgb: NDArray[np.uint8] | IndexedImage) -> Image.Image:
-    """Return a Pillow RGB image of an (H, W, 3) uint8 array or :class:`IndexedImage`.
-
-    Built band by band, so besides the image itself no full-size copy is made.
-    """
-    return _box_reduced(_check_rgb_image(rgb, "picture"), 1)
 
 
 def rgb_bands(rgb: NDArray[np.uint8] | IndexedImage) -> Iterator[NDArray[np.uint8]]:
