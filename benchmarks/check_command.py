@@ -13,15 +13,17 @@ measured in the same run, in fresh processes:
 and the whole command (start-up included) is timed in a fresh process. The
 script prints seconds, the ratio to the floor, and peak memory (maximum
 resident set size of the child) above a process that only decoded the image,
-per pixel.
+per pixel: medians of ``--repeat`` interleaved runs (default 3) with their
+range, because a shared machine's timings vary by 10-20 % from run to run.
 
-Run: ``python benchmarks/check_command.py [--megapixels 24] [--keep DIR] [--only chart|photo]``
+Run: ``python benchmarks/check_command.py [--megapixels 24] [--keep DIR] [--only chart|photo] [--repeat 3]``
 """
 
 from __future__ import annotations
 
 import argparse
 import os
+import statistics
 import subprocess
 import sys
 import tempfile
@@ -118,27 +120,32 @@ bench.make_photo(Path(sys.argv[3]), int(sys.argv[4]), int(sys.argv[5]))
 """
 
 
-def bench(label: str, image: Path, work: Path) -> None:
+def bench(label: str, image: Path, work: Path, repeat: int) -> None:
+    """Time the floor and the command ``repeat`` times, interleaved, and print medians and ranges."""
     with Image.open(image) as im:
         w, h = im.size
     pixels = w * h
-    decode_t, decode_rss = python_child(DECODE, str(image))
-    sep_t, _ = python_child(SEPARATE, str(image))
-    sep_only = max(sep_t - decode_t, 0.0)
-    write_t, _ = python_child(WRITE, str(image), str(work / "floor.png"))
-    write_only = max(write_t - decode_t, 0.0)
-    floor = decode_t + sep_only + write_only
-    out = work / f"{label}_out"
-    check_t, check_rss = run_child([sys.executable, "-m", "inkshift", "check", str(image), "--out", str(out)])
+    rows = []
+    for _ in range(repeat):
+        decode_t, decode_rss = python_child(DECODE, str(image))
+        sep_t, _ = python_child(SEPARATE, str(image))
+        write_t, _ = python_child(WRITE, str(image), str(work / "floor.png"))
+        floor = decode_t + max(sep_t - decode_t, 0.0) + max(write_t - decode_t, 0.0)
+        out = work / f"{label}_out"
+        check_t, check_rss = run_child([sys.executable, "-m", "inkshift", "check", str(image), "--out", str(out)])
+        rows.append((decode_t, sep_t - decode_t, write_t - decode_t, floor, check_t, check_t / floor, check_rss, decode_rss))
     # In a child: Linux keeps a process's peak RSS across exec, so a parent that
     # once held big arrays would inflate every later child's figure.
     uniq = int(subprocess.run([sys.executable, "-c", UNIQUE, str(image)], check=True, capture_output=True, text=True).stdout)
-    above = (check_rss - decode_rss) / pixels
-    print(f"{label}: {w} x {h} = {pixels / 1e6:.1f} MP, {uniq} unique colours")
-    print(f"  floor: decode {decode_t:.2f} s + LittleCMS RGB->CMYK {sep_only:.2f} s + PNG write {write_only:.2f} s = {floor:.2f} s")
-    print(f"  inkshift check (whole command, start-up included): {check_t:.2f} s  ratio {check_t / floor:.2f}x")
-    print(f"  peak RSS: check {check_rss / 2**20:.0f} MiB, decode-only process {decode_rss / 2**20:.0f} MiB, "
-          f"above decoded image {above:.1f} bytes/pixel")
+    col = list(zip(*rows))
+    med = [statistics.median(c) for c in col]
+    above = [(c - d) / pixels for c, d in zip(col[6], col[7])]
+    print(f"{label}: {w} x {h} = {pixels / 1e6:.1f} MP, {uniq} unique colours (median of {repeat} runs, range in brackets)")
+    print(f"  floor: decode {med[0]:.2f} s + LittleCMS RGB->CMYK {med[1]:.2f} s + PNG write {med[2]:.2f} s = {med[3]:.2f} s")
+    print(f"  inkshift check (whole command, start-up included): {med[4]:.2f} s  "
+          f"ratio {med[5]:.2f}x [{min(col[5]):.2f}-{max(col[5]):.2f}]")
+    print(f"  peak RSS: check {med[6] / 2**20:.0f} MiB, decode-only process {med[7] / 2**20:.0f} MiB, "
+          f"above decoded image {statistics.median(above):.1f} bytes/pixel [{min(above):.1f}-{max(above):.1f}]")
 
 
 def main() -> None:
@@ -146,6 +153,7 @@ def main() -> None:
     parser.add_argument("--megapixels", type=float, default=24.0)
     parser.add_argument("--keep", type=Path, default=None, help="keep the generated files in this folder")
     parser.add_argument("--only", choices=("chart", "photo"), default=None, help="time one of the two inputs")
+    parser.add_argument("--repeat", type=int, default=3, help="runs of the floor and the command (medians are printed)")
     args = parser.parse_args()
     height = int(round((args.megapixels * 1e6 / 1.5) ** 0.5))
     width = int(round(height * 1.5))
@@ -160,7 +168,7 @@ def main() -> None:
         )
         for label, image in (("chart", chart), ("photo", photo)):
             if args.only in (None, label):
-                bench(label, image, work)
+                bench(label, image, work, max(1, args.repeat))
 
 
 if __name__ == "__main__":
