@@ -1000,10 +1000,15 @@ def _same(
     # sRGB colours are never more than about 30 codes apart.
     maybe = np.flatnonzero(~out & (codes <= _DE_PREFILTER_CODES))
     # In chunks: in a photograph most colours pass the prefilter, and ΔE00
-    # makes a dozen float64 temporaries per colour.
+    # makes a dozen float64 temporaries per colour. ΔE00 only where the ΔE*ab
+    # bound (see _DE76_BASE) allows a ΔE00 within the noise radius.
+    c1 = float(np.hypot(lab1[1], lab1[2]))
     for s in range(0, maybe.size, _CHUNK * 8):
         part = maybe[s : s + _CHUNK * 8]
-        out[part] = delta_e_2000(lab[part], lab1) <= NOISE_DELTA_E
+        near = np.asarray(lab[part], np.float64)
+        reach = NOISE_DELTA_E * (_DE76_BASE + _DE76_PER_CHROMA * (np.hypot(near[:, 1], near[:, 2]) + c1))
+        close = delta_e_1976(near, lab1) <= reach
+        out[part[close]] = delta_e_2000(near[close], lab1) <= NOISE_DELTA_E
     return out
 
 

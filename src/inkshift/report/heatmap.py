@@ -36,6 +36,7 @@ from inkshift.color.convert import D50_XYZ, lab_to_xyz, xyz_to_lab
 from inkshift.color.scale import HEAT_TICKS_DEFAULT, heat_colors
 from inkshift.color.vision import linear_to_srgb, srgb_to_linear
 from inkshift.errors import InputError
+from inkshift.memory import release_freed_memory
 from inkshift.report.sheets import (
     BACKGROUND,
     TEXT_COLOR,
@@ -441,6 +442,8 @@ def heatmap_bands(
             idx <<= 8
             idx += faded_gray(screen_rgb.values[part])
             painted[part] = lut.take(idx)
+        del idx
+        release_freed_memory()  # the steps' temporaries, before the bands are drawn
         per_color = IndexedImage(painted, delta_e.index, (h, w), delta_e.runs)
 
     def bands() -> Iterator[NDArray[np.uint8]]:

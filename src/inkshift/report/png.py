@@ -40,15 +40,18 @@ def _chunk(kind: bytes, data: bytes) -> bytes:
     return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(data, zlib.crc32(kind)))
 
 
-def _filtered(band: NDArray[np.uint8]) -> bytes:
-    """Scanlines of an (h, W, 3) band with filter type 1 (Sub): each byte minus the one 3 bytes left."""
+def _filtered(band: NDArray[np.uint8]) -> NDArray[np.uint8]:
+    """Scanlines of an (h, W, 3) band with filter type 1 (Sub): each byte minus the one 3 bytes left.
+
+    Returned as a contiguous (h, 1 + 3 W) array, which zlib reads in place.
+    """
     h, w = band.shape[:2]
-    flat = np.ascontiguousarray(band).reshape(h, 3 * w)
     raw = np.empty((h, 1 + 3 * w), np.uint8)
     raw[:, 0] = 1
-    raw[:, 1:4] = flat[:, :3]
-    np.subtract(flat[:, 3:], flat[:, :-3], out=raw[:, 4:])  # modulo 256, as the filter asks
-    return raw.tobytes()
+    pixels = raw[:, 1:].reshape(h, w, 3)
+    pixels[:, :1] = band[:, :1]
+    np.subtract(band[:, 1:], band[:, :-1], out=pixels[:, 1:])  # modulo 256, as the filter asks
+    return raw
 
 
 def write_png_bands(
