@@ -209,7 +209,7 @@ def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool
         weighted += float(np.dot(delta_e[s : s + _STATS_CHUNK], part))
         outside += part[out_of_gamut[s : s + _STATS_CHUNK]].sum()
     return Summary(
-        delta_e_mean=weighted / total,
+        delta_e_mean=float(weighted / total),
         delta_e_p95=weighted_percentile(delta_e, counts, 0.95),
         delta_e_max=float(delta_e.max()),
         out_of_gamut_share=float(outside / total),
