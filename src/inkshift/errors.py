@@ -18,6 +18,7 @@ __all__ = [
     "ConditionError",
     "InputError",
     "CmsError",
+    "one_line",
 ]
 
 
@@ -71,3 +72,9 @@ class InputError(InkshiftError):
 
 class CmsError(InkshiftError):
     """LittleCMS (through Pillow.ImageCms) refused or failed a transform."""
+
+
+def one_line(exc: BaseException, limit: int = 200) -> str:
+    """Return a library exception's message as one line of at most ``limit``
+    characters (its type name when it has no message), for the project's errors."""
+    return " ".join(str(exc).split())[:limit] or type(exc).__name__

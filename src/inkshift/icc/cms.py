@@ -21,7 +21,7 @@ import numpy as np
 from numpy.typing import NDArray
 from PIL import Image, ImageCms
 
-from inkshift.errors import CmsError, ProfileError
+from inkshift.errors import CmsError, ProfileError, one_line
 from inkshift.icc.intent import Intent, parse_intent
 
 __all__ = [
@@ -76,7 +76,7 @@ def cms_profile(source: ProfileSource) -> ImageCms.ImageCmsProfile:
             name = str(getattr(source, "source", name))
             return ImageCms.ImageCmsProfile(io.BytesIO(bytes(data)))
     except (OSError, ImageCms.PyCMSError, TypeError, ValueError) as exc:
-        raise ProfileError(name, f"LittleCMS cannot open the profile ({_one_line(exc)})") from None
+        raise ProfileError(name, f"LittleCMS cannot open the profile ({one_line(exc)})") from None
     raise ProfileError(name, f"not a profile: {type(source).__name__}")
 
 
@@ -135,7 +135,7 @@ def transform_colors(
             renderingIntent=ImageCms.Intent(int(intent)), flags=flags,
         )
     except ImageCms.PyCMSError as exc:
-        raise CmsError(f"LittleCMS cannot build the transform ({_one_line(exc)})") from None
+        raise CmsError(f"LittleCMS cannot build the transform ({one_line(exc)})") from None
 
     rows = -(-n // _ROW)
     width = min(n, _ROW)
@@ -145,7 +145,7 @@ def transform_colors(
     try:
         out = ImageCms.applyTransform(img, transform)
     except (ImageCms.PyCMSError, ValueError, OSError) as exc:
-        raise CmsError(f"LittleCMS failed to apply the transform ({_one_line(exc)})") from None
+        raise CmsError(f"LittleCMS failed to apply the transform ({one_line(exc)})") from None
     arr = _from_image(out, out_mode).reshape(-1, n_out)[:n]
     return arr.reshape(lead + (n_out,))
 
@@ -169,5 +169,3 @@ def _from_image(img: Image.Image, mode: str) -> NDArray[np.uint8]:
     return np.asarray(img, dtype=np.uint8)
 
 
-def _one_line(exc: BaseException) -> str:
-    return " ".join(str(exc).split()) or type(exc).__name__

@@ -151,13 +151,12 @@ def eval_curve(curve: Curve, x: ArrayLike) -> NDArray[np.float64]:
     x = np.clip(np.asarray(x, dtype=np.float64), 0.0, 1.0)
     if curve.is_identity:
         return x
-    if curve.kind == "table" and curve.table is not None and len(curve.table) >= 2:
-        # Interpolating between table entries in 0..1 stays in 0..1 and finite.
+    if curve.kind == "table":
+        # The reader makes tables of two or more entries in 0..1; interpolating
+        # between them stays in 0..1 and finite.
         return _interp_uniform(curve.table, x)
     if curve.kind == "gamma":
         y = np.power(x, curve.gamma)
-    elif curve.kind == "table":
-        y = _interp_uniform(curve.table, x)
     else:
         g, a, b, c, d, e, f = _parametric_form(curve)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):

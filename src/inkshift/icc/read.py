@@ -24,7 +24,7 @@ from pathlib import Path
 import numpy as np
 from numpy.typing import NDArray
 
-from inkshift.errors import ProfileError
+from inkshift.errors import ProfileError, one_line
 from inkshift.icc.lut import Clut, Curve, CurveSet, Lut, MatrixStage, Stage
 
 __all__ = ["Profile", "read_profile", "MAX_CLUT_ENTRIES", "MAX_PROFILE_BYTES", "COLOR_SPACE_CHANNELS"]
@@ -47,9 +47,6 @@ COLOR_SPACE_CHANNELS: dict[str, int] = {
 
 _DEVICE_CLASSES = ("scnr", "mntr", "prtr", "link", "spac", "abst", "nmcl")
 
-# Tags whose type must be understood because the colorimetry depends on them.
-_XYZ_TAGS = ("wtpt", "bkpt", "rXYZ", "gXYZ", "bXYZ")
-_TRC_TAGS = ("rTRC", "gTRC", "bTRC", "kTRC")
 _LUT_TAGS = ("A2B0", "A2B1", "A2B2", "B2A0", "B2A1", "B2A2")
 
 
@@ -129,11 +126,9 @@ def read_profile(source: str | Path | bytes, name: str | None = None) -> Profile
         raise
     except (struct.error, IndexError, ValueError, TypeError, KeyError, OverflowError,
             ZeroDivisionError, UnicodeError, MemoryError) as exc:
-        raise ProfileError(label, f"malformed profile ({type(exc).__name__}: {_one_line(exc)})") from None
+        raise ProfileError(label, f"malformed profile ({type(exc).__name__}: {one_line(exc)})") from None
 
 
-def _one_line(exc: BaseException) -> str:
-    return " ".join(str(exc).split())[:200] or "no detail"
 
 
 def _parse(label: str, data: bytes) -> Profile:
@@ -211,8 +206,6 @@ def _parse(label: str, data: bytes) -> Profile:
             xyz_input = (space_sig if t.startswith("A2B") else pcs_sig) == "XYZ "
             lut = reader.lut(t, xyz_input)
             n_in, n_out = (channels, pcs_channels) if t.startswith("A2B") else (pcs_channels, channels)
-            if device_class == "link" and t.startswith("B2A"):
-                n_in, n_out = pcs_channels, channels
             if (lut.n_in, lut.n_out) != (n_in, n_out):
                 raise ProfileError(
                     label,
@@ -275,7 +268,7 @@ class _TagReader:
             raise
         except (struct.error, IndexError, ValueError, TypeError, KeyError, OverflowError,
                 ZeroDivisionError, UnicodeError) as exc:
-            raise self._fail(tag, f"malformed data ({type(exc).__name__}: {_one_line(exc)})") from None
+            raise self._fail(tag, f"malformed data ({type(exc).__name__}: {one_line(exc)})") from None
 
     # --- simple types ---------------------------------------------------------
     def xyz(self, tag: str) -> NDArray[np.float64] | None:

@@ -1,7 +1,8 @@
 """Write ICC v2.4 output ('prtr') profiles with CIELAB PCS from float tables.
 
-The writer serialises a :class:`inkshift.printing.tables.ProfileTables`
-(or any object with the same attributes) into an ICC.1:2001-04 (version
+The writer serialises a :class:`ProfileTables` (built by
+:func:`inkshift.printing.tables.profile_tables`, or any object with the same
+attributes) into an ICC.1:2001-04 (version
 2.4) profile: header, tag table, and the tags
 
 ``desc``  textDescriptionType (ASCII part; empty Unicode and ScriptCode parts)
@@ -41,7 +42,8 @@ from __future__ import annotations
 
 import struct
 from datetime import date, datetime
-from typing import Any, Protocol
+from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -52,6 +54,7 @@ from inkshift.icc.encoding import lab_to_legacy16
 
 __all__ = [
     "printer_profile_bytes",
+    "ProfileTables",
     "PROFILE_VERSION",
     "CMM_SIGNATURE",
     "CREATOR_SIGNATURE",
@@ -78,7 +81,10 @@ _HEADER_SIZE = 128
 _COLOR_SPACES = {"CMYK": (b"CMYK", 4), "GRAY": (b"GRAY", 1)}
 
 
-class _Tables(Protocol):  # the attributes of printing.tables.ProfileTables used here
+@dataclass(frozen=True, eq=False)
+class ProfileTables:
+    """Everything the writer needs for an output profile (see the tables contract)."""
+
     description: str
     copyright: str
     color_space: str
@@ -89,7 +95,7 @@ class _Tables(Protocol):  # the attributes of printing.tables.ProfileTables used
     gamut: NDArray[np.float64]
 
 
-def printer_profile_bytes(tables: _Tables, *, created: str | date | datetime) -> bytes:
+def printer_profile_bytes(tables: ProfileTables, *, created: str | date | datetime) -> bytes:
     """Return the bytes of an ICC v2.4 output profile holding ``tables``.
 
     Parameters

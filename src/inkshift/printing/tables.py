@@ -18,14 +18,13 @@ Deterministic: no random numbers are used, so rebuilding gives identical arrays.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 from numpy.typing import NDArray
 
 from inkshift.color.convert import D50_XYZ, lab_to_xyz
 from inkshift.icc.encoding import legacy16_lab_grid
 from inkshift.icc.intent import Intent
+from inkshift.icc.write import ProfileTables
 from inkshift.printing.conditions import Condition
 from inkshift.printing.gamut_mapping import clip_to_gamut, in_gamut, map_intent, printer_gamut_boundary
 from inkshift.printing.neugebauer import HalftoneModel, device_to_lab, halftone_model
@@ -41,20 +40,6 @@ GBD_MARGIN_CHROMA = 4.0
 solver: larger than the descriptor's binning error (checked in tests/test_separation.py)."""
 GRAY_A2B_POINTS = 256
 """Entries of the one-dimensional A2B table of a one-ink condition."""
-
-
-@dataclass(frozen=True, eq=False)
-class ProfileTables:
-    """Everything an ICC writer needs for an output profile (see the tables contract)."""
-
-    description: str
-    copyright: str
-    color_space: str
-    media_white_xyz: NDArray[np.float64]
-    media_black_xyz: NDArray[np.float64]
-    a2b: dict[int, NDArray[np.float64]]
-    b2a: dict[int, NDArray[np.float64]]
-    gamut: NDArray[np.float64]
 
 
 def relative_colorimetric(model: HalftoneModel, lab: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
