@@ -34,9 +34,10 @@ from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile, read_profile
 from inkshift.memory import release_freed_memory
 from inkshift.proof import (
+    INK_NAMES,
     ColorProof,
     check_output_profile,
-    ink_percent,
+    ink_recipes,
     proof_colors,
     proof_pixels,
     screen_srgb8,
@@ -64,6 +65,7 @@ __all__ = [
     "weighted_summary",
     "weighted_percentile",
     "shipped_in_use",
+    "assumed_srgb",
     "image_source",
     "composite_on_white",
     "pair_verdicts",
@@ -71,12 +73,6 @@ __all__ = [
     "OUTPUT_FILES",
 ]
 
-INK_NAMES: dict[str, tuple[str, ...]] = {
-    "CMYK": ("c", "m", "y", "k"),
-    "GRAY": ("k",),
-    "RGB": ("r", "g", "b"),
-}
-"""Keys of the device recipe in the report, per output colour space."""
 
 OUTPUT_FILES: dict[str, str] = {
     "heatmap": "heatmap.png",
@@ -154,7 +150,13 @@ def shipped_in_use(outputs: list[ProfileInfo], gray: Any = None) -> list[str]:
     names = [info.name for info in outputs if info.shipped]
     if gray is not None and gray.gray_profile in shipped_names():
         names.append(gray.gray_profile)
-    return names
+    return list(dict.fromkeys(names))
+
+
+def assumed_srgb(profile_assumed: bool, color_space: str) -> bool:
+    """True when an image was taken to be sRGB for want of an embedded profile
+    (a CMYK image without one is taken to be in the output profile's CMYK)."""
+    return profile_assumed and color_space != "CMYK"
 
 
 _PERCENTILE_BINS = 1 << 16  # histogram bins of weighted_percentile: a photograph's millions of values leave ~100 a bin
@@ -255,12 +257,11 @@ def _palette_colors(
     output: Profile,
     thresholds: Thresholds,
 ) -> list[PaletteColor]:
-    names = INK_NAMES[output.color_space]
-    inks = ink_percent(output, proof.device)
+    inks = ink_recipes(output, proof.device)
     screen_rgb = screen_srgb8(palette.colors, source)
     out: list[PaletteColor] = []
     for k in range(len(palette.colors)):
-        ink = {n: float(v) for n, v in zip(names, inks[k])}
+        ink = inks[k]
         verdicts = []
         if proof.out_of_gamut[k]:
             verdicts.append("out of gamut")
@@ -438,7 +439,7 @@ def check(
         cautions=cautions_for(
             shipped_profile=shipped_in_use([profile_info], gray),
             vision=vision is not None,
-            assumed_srgb=assumed and image_info.color_space != "CMYK",
+            assumed_srgb=assumed_srgb(assumed, image_info.color_space),
         ),
         extra=extra,
         maps=maps,

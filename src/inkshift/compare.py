@@ -23,7 +23,7 @@ from PIL import Image
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import load_chart
 from inkshift.chart.unique import expand
-from inkshift.check import check, shipped_in_use, weighted_percentile
+from inkshift.check import assumed_srgb, check, shipped_in_use, weighted_percentile
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import InputError
 from inkshift.files import output_folder
@@ -246,7 +246,7 @@ def compare(
         cautions=cautions_for(
             shipped_profile=shipped_in_use([o.check.output_profile for o in outcomes], first.gray),
             vision=vision_severity is not None,
-            assumed_srgb=first.image.profile_assumed and first.image.color_space != "CMYK",
+            assumed_srgb=assumed_srgb(first.image.profile_assumed, first.image.color_space),
         ),
         pixels_shape=(first.image.height, first.image.width),
     )

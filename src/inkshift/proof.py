@@ -36,10 +36,17 @@ from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
 from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
 
-__all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_profile", "lab_to_srgb8", "screen_srgb8", "ink_percent", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
+__all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_profile", "lab_to_srgb8", "screen_srgb8", "ink_percent", "ink_recipes", "INK_NAMES", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
 
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
+
+INK_NAMES: dict[str, tuple[str, ...]] = {
+    "CMYK": ("c", "m", "y", "k"),
+    "GRAY": ("k",),
+    "RGB": ("r", "g", "b"),
+}
+"""Keys of the device recipe in the report, per output colour space."""
 
 _PROOF_CHUNK = 1 << 14
 """Colours per step of the float evaluation: it bounds the temporaries, and
@@ -147,6 +154,12 @@ def ink_percent(profile: Profile, device: NDArray[np.uint8]) -> NDArray[np.float
         if ends[0] < ends[1]:
             percent = 100.0 - percent
     return percent
+
+
+def ink_recipes(profile: Profile, device: NDArray[np.uint8]) -> list[dict[str, float]]:
+    """Return each colour's device recipe, ink name -> percent (:func:`ink_percent`, keys :data:`INK_NAMES`)."""
+    names = INK_NAMES[profile.color_space]
+    return [{n: float(v) for n, v in zip(names, row)} for row in ink_percent(profile, device)]
 
 
 def print_view(intent: Intent, paper: bool = False) -> Intent:

@@ -35,7 +35,7 @@ from numpy.typing import NDArray
 from PIL import Image
 
 from inkshift.cautions import cautions_for
-from inkshift.check import INK_NAMES, open_output_profile
+from inkshift.check import assumed_srgb, open_output_profile, shipped_in_use
 from inkshift.chart.load import load_chart
 from inkshift.color.difference import delta_e_2000
 from inkshift.colorlist import ColorSpec, parse_named_color
@@ -43,7 +43,7 @@ from inkshift.errors import ImageError, InputError, ProfileError
 from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import ColorProof, lab_to_srgb8, proof_colors, srgb_profile
+from inkshift.proof import ColorProof, ink_recipes, lab_to_srgb8, proof_colors, screen_srgb8, srgb_profile
 from inkshift.readability import GRAY_PROFILE
 from inkshift.report.console import format_table
 from inkshift.report.model import ProfileInfo, rgb_hex
@@ -518,8 +518,11 @@ def check_ramp(
     violations.sort(key=lambda v: (v.step, order[v.rendition], v.problem))
 
     steps = _steps(inp, proof, gproof, output, screen_next, print_next, gray_next, violations)
-    shipped = list(dict.fromkeys(i.name for i in (out_info, gray_info) if i.shipped))
-    cautions = cautions_for(shipped_profile=shipped, vision=False, assumed_srgb=inp.assumed)
+    cautions = cautions_for(
+        shipped_profile=shipped_in_use([out_info, gray_info]),
+        vision=False,
+        assumed_srgb=assumed_srgb(inp.assumed, inp.source.color_space),
+    )
     notes = inp.notes
     if kind == "diverging":
         notes += ("In black and white a diverging scale keeps its steps but not which side of the "
@@ -555,11 +558,8 @@ def _steps(
     violations: list[RampViolation],
 ) -> list[RampStep]:
     n = len(inp.colors)
-    if inp.source is srgb_profile():
-        screen_rgb = inp.colors
-    else:
-        screen_rgb = lab_to_srgb8(proof.screen_lab)
-    names = INK_NAMES[output.color_space]
+    screen_rgb = screen_srgb8(inp.colors, inp.source)
+    inks = ink_recipes(output, proof.device)
     flags: list[list[str]] = [[] for _ in range(n)]
     for v in violations:
         flags[v.step].append(f"{_FLAG_WORDS[v.problem]} {RENDITIONS[v.rendition]}")
@@ -577,7 +577,7 @@ def _steps(
                 screen_lab=tuple(float(v) for v in proof.screen_lab[k]),  # type: ignore[arg-type]
                 print_lab=tuple(float(v) for v in proof.print_lab[k]),  # type: ignore[arg-type]
                 gray_l=float(gproof.print_lab[k, 0]),
-                ink={name: float(v) * 100.0 / 255.0 for name, v in zip(names, proof.device[k])},
+                ink=inks[k],
                 delta_e=float(proof.delta_e[k]),
                 out_of_gamut=bool(proof.out_of_gamut[k]),
                 screen_delta_e_next=None if last else float(screen_next[k]),

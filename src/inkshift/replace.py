@@ -99,7 +99,7 @@ from inkshift.cautions import cautions_for
 from inkshift.chart.load import ChartImage
 from inkshift.chart.palette import BLEND, NOISE_DELTA_E, label_blends
 from inkshift.chart.unique import expand
-from inkshift.check import check, open_output_profile
+from inkshift.check import assumed_srgb, check, open_output_profile, shipped_in_use
 from inkshift.colorlist import parse_color
 from inkshift.color.difference import delta_e_1976, delta_e_2000
 from inkshift.color.vision import CVD_MERGE_DELTA_E, simulate_cvd_lab
@@ -768,9 +768,9 @@ def suggest_replacements(
         second_pass=second,
         notes=notes,
         cautions=cautions_for(
-            shipped_profile=report.output_profile.name if report.output_profile.shipped else None,
+            shipped_profile=shipped_in_use([report.output_profile, gray_info]),
             vision=True,
-            assumed_srgb=report.image.profile_assumed and report.image.color_space != "CMYK",
+            assumed_srgb=assumed_srgb(report.image.profile_assumed, report.image.color_space),
         ),
         check=report,
     )

@@ -53,9 +53,9 @@ from typing import Any, Sequence
 import numpy as np
 from numpy.typing import NDArray
 
-from inkshift.cautions import HARD_PROOF, cautions_for
+from inkshift.cautions import cautions_for
 from inkshift.chart.unique import unique_colors
-from inkshift.check import INK_NAMES, open_output_profile
+from inkshift.check import open_output_profile, shipped_in_use
 from inkshift.color.difference import delta_e_2000
 from inkshift.colorlist import ColorSpec
 from inkshift.errors import InputError
@@ -63,7 +63,7 @@ from inkshift.icc.cms import lab_profile, srgb_profile_bytes, transform_colors
 from inkshift.icc.evaluate import device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import PILLOW_MODES, ColorProof, lab_to_srgb8, print_side, print_view, proof_colors, srgb_profile
+from inkshift.proof import PILLOW_MODES, ColorProof, ink_recipes, lab_to_srgb8, print_side, print_view, proof_colors, srgb_profile
 from inkshift.report.console import INTENT_WORDS, format_table
 from inkshift.report.model import ProfileInfo, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
@@ -423,20 +423,9 @@ def _in_srgb(lab: NDArray[np.float64]) -> NDArray[np.bool_]:
     return delta_e_2000(lab, back) <= SRGB_GAMUT_DELTA_E
 
 
-def _ink(device: NDArray[np.uint8], space: str) -> tuple[dict[str, float], float]:
-    ink = {n: float(v) * 100.0 / 255.0 for n, v in zip(INK_NAMES[space], device)}
-    return ink, (sum(ink.values()) if space != "RGB" else float("nan"))
-
-
-def _cautions(infos: Sequence[ProfileInfo]) -> list[str]:
-    shipped = [p.name for p in infos if p.shipped] or [None]
-    merged: list[str] = []
-    for name in shipped:
-        for c in cautions_for(shipped_profile=name, vision=False, assumed_srgb=False):
-            if c not in merged:
-                merged.append(c)
-    # One closing caution, after every profile's own.
-    return [c for c in merged if c != HARD_PROOF] + [HARD_PROOF]
+def _coverage(ink: dict[str, float], space: str) -> float:
+    """Total area coverage in percent; NaN for an RGB output (no inks)."""
+    return sum(ink.values()) if space != "RGB" else float("nan")
 
 
 def _t3(v: NDArray[np.float64]) -> tuple[float, float, float]:
@@ -521,9 +510,10 @@ def check_swatches(
         printable = printable_colors(output, screen_lab, print_view(intent))
         printable_de = delta_e_2000(screen_lab, printable)
         near_rgb, near_device, near_de = nearest_printable(printable, output, intent, bpc)
+        inks, near_inks = ink_recipes(output, device), ink_recipes(output, near_device)
         for k, c in enumerate(colors):
-            ink, coverage = _ink(device[k], output.color_space)
-            near_ink, near_coverage = _ink(near_device[k], output.color_space)
+            ink, near_ink = inks[k], near_inks[k]
+            coverage, near_coverage = _coverage(ink, output.color_space), _coverage(near_ink, output.color_space)
             results.append(
                 SwatchResult(
                     name=c.name,
@@ -564,7 +554,7 @@ def check_swatches(
         profiles=infos,
         swatches=results,
         notes=notes,
-        cautions=_cautions(infos),
+        cautions=cautions_for(shipped_profile=shipped_in_use(infos), vision=False, assumed_srgb=False),
     )
 
 
