@@ -21,7 +21,7 @@ from inkshift.icc.intent import INTENT_NAMES, Intent
 from inkshift.icc.lut import Clut, Lut, eval_stages
 from inkshift.icc.read import Profile
 
-__all__ = ["profile_summary", "total_ink_limit", "CLASS_NAMES"]
+__all__ = ["profile_summary", "total_ink_limit", "ink_limits", "CLASS_NAMES"]
 
 CLASS_NAMES: dict[str, str] = {
     "scnr": "input device",
@@ -115,12 +115,25 @@ def profile_summary(profile: Profile) -> dict[str, Any]:
         "gamut_tag": profile.gamut.kind if profile.gamut is not None else None,
     }
     if profile.color_space == "CMYK":
-        limits = {}
-        for tag, lut in sorted(profile.luts.items()):
-            if tag.startswith("B2A"):
-                limit = total_ink_limit(lut)
-                if limit is not None:
-                    limits[tag] = round(limit, 1)
+        limits = ink_limits(profile)
         summary["ink_limits"] = limits
         summary["total_ink_limit"] = max(limits.values()) if limits else None
     return summary
+
+
+def ink_limits(profile: Profile) -> dict[str, float]:
+    """Return the total ink (percent, to 0.1 %) of each B2A table of a CMYK profile.
+
+    :func:`total_ink_limit` of each table, rounded to 0.1 % (which absorbs the
+    16-bit rounding of the entries). A profile's separations never ask for more
+    ink than its condition allows, so the largest is the limit it was built for;
+    a colorimetric table may stay below it (its darkest colours are clipped
+    rather than pushed to the deepest black).
+    """
+    limits = {}
+    for tag, lut in sorted(profile.luts.items()):
+        if tag.startswith("B2A"):
+            limit = total_ink_limit(lut)
+            if limit is not None:
+                limits[tag] = round(limit, 1)
+    return limits

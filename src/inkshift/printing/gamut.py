@@ -48,10 +48,10 @@ from numpy.typing import ArrayLike, NDArray
 
 from inkshift.errors import ProfileError
 from inkshift.icc.cms import srgb_profile_bytes
-from inkshift.icc.evaluate import device_to_lab, select_table
+from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
-from inkshift.icc.summary import total_ink_limit
+from inkshift.icc.summary import ink_limits
 from inkshift.shipped import resolve_profile
 
 __all__ = [
@@ -238,21 +238,15 @@ def _open(profile: Any) -> Profile:
 
 
 def estimate_ink_limit(profile: Any) -> float | None:
-    """Return a CMYK profile's ink limit (fraction, e.g. 3.0) read from its B2A1, or None.
+    """Return a CMYK profile's ink limit (fraction, e.g. 3.3), or None.
 
-    The largest channel sum over the table's CLUT nodes
-    (:func:`inkshift.icc.summary.total_ink_limit`), rounded to 0.1 %
-    (which absorbs the 16-bit rounding of the table entries): a profile's own
-    separation never asks for more ink than its condition allows, so this is
-    the limit it was built for. None for
-    profiles that are not CMYK or have no B2A table.
+    The largest total ink of its B2A tables, the figure ``profiles show``
+    prints (:func:`inkshift.icc.summary.ink_limits`). None for profiles that
+    are not CMYK or have no B2A table.
     """
     prof = _open(profile)
-    tag = select_table(prof, "B2A", Intent.RELATIVE) if prof.channels == 4 else None
-    percent = total_ink_limit(prof.luts[tag]) if tag is not None else None
-    if percent is None:
-        return None
-    return float(np.round(percent, 1) / 100.0)
+    limits = ink_limits(prof) if prof.color_space == "CMYK" else {}
+    return max(limits.values()) / 100.0 if limits else None
 
 
 def profile_boundary_lab(profile: Any, *, ink_limit: float | None = None, steps: int = FACE_STEPS) -> NDArray[np.float64]:
