@@ -33,8 +33,8 @@ Method (the project's own; the reasoning is given for each step)
    under simulated protanopia, deuteranopia and tritanopia
    (:func:`inkshift.color.vision.simulate_cvd_lab`, Machado et al. 2009).
    Each is divided by its target (``thresholds.merge``,
-   :data:`inkshift.readability.GRAY_MERGE_DELTA_L`,
-   :data:`inkshift.color.vision.CVD_MERGE_DELTA_E`): the *score* is the
+   :data:`inkshift.readability.GRAY_MERGE_DELTA_L`, and ``thresholds.merge``
+   again for colour vision, as the check judges it): the *score* is the
    smallest of the three ratios, capped at 1 (all targets met).
 4. **Objective per colour.** First the score (in steps of
    :data:`SCORE_STEP`, so that a negligible gain in separation cannot buy a
@@ -102,7 +102,7 @@ from inkshift.chart.unique import expand
 from inkshift.check import assumed_srgb, check, open_output_profile, shipped_in_use
 from inkshift.colorlist import parse_color
 from inkshift.color.difference import delta_e_1976, delta_e_2000
-from inkshift.color.vision import CVD_MERGE_DELTA_E, simulate_cvd_lab
+from inkshift.color.vision import simulate_cvd_lab
 from inkshift.errors import InputError, ProfileError
 from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
@@ -593,7 +593,7 @@ def suggest_replacements(
     lock_background: bool = True,
     gray_profile: str | Path | Profile = GRAY_PROFILE,
     gray_target: float = GRAY_MERGE_DELTA_L,
-    vision_target: float = CVD_MERGE_DELTA_E,
+    vision_target: float | None = None,
     grid_levels: int = GRID_LEVELS,
 ) -> ReplaceReport:
     """Propose printable replacements for the palette colours of a check (see the module docstring).
@@ -611,7 +611,9 @@ def suggest_replacements(
         Grayscale output profile of the black-and-white figure.
     gray_target, vision_target
         Targets of the smallest gray ΔL* and the smallest simulated-CVD
-        print ΔE00; the print target is ``report.thresholds.merge``.
+        print ΔE00 (default: ``report.thresholds.merge``, the threshold the
+        check's own colour-vision verdict used); the print target is
+        ``report.thresholds.merge``.
     grid_levels
         Candidate levels per sRGB channel (:data:`GRID_LEVELS`).
 
@@ -622,6 +624,8 @@ def suggest_replacements(
     palette = report.palette
     if palette is None or report.source_profile is None:
         raise InputError("the check report carries no palette; run inkshift.check.check() to make one")
+    if vision_target is None:
+        vision_target = report.thresholds.merge
     for name, value in (("gray target", gray_target), ("vision target", vision_target)):
         if not value > 0:
             raise InputError(f"the {name} must be positive, got {value}")

@@ -225,7 +225,12 @@ noise (chosen by this project: 4 % of a full black-white step is 10 codes)."""
 
 _MAX_GROUP_STEPS = 16 * 64  # seeds tried per grouping stage before giving up
 _MAX_GROUP_COLORS = 1 << 16  # colours with the most evidence that take part in grouping
-_DE_PREFILTER_CODES = 64  # codes beyond which ΔE00 is not computed for the noise test
+_DE_PREFILTER_CODES = 64
+"""Codes (largest channel) beyond which two RGB or gray colours are not tested by
+ΔE00 for the noise radius: within 1 ΔE00 of each other, two 8-bit sRGB colours
+are at most 37 codes apart (measured by this project: the worst case is near
+(0, 0, 255)). Not applied to CMYK, where ink mixes 250 codes apart can print
+within 1 ΔE00 of each other; the ΔE*ab bound decides there."""
 _STRIP_PIXELS = 1 << 19  # pixels per strip when gathering spatial evidence
 _CHUNK = 1 << 13  # colours per step when matching colours against the palette
 _LABEL_CHUNK = 1 << 17  # unique colours per step of the final labelling
@@ -996,9 +1001,8 @@ def _same(
     """True where ``colors`` are within the noise radius of ``color`` (codes or ΔE00)."""
     codes = _code_distance(colors, color)
     out = codes <= NOISE_CODES
-    # ΔE00 only where it can matter: within 1 ΔE00 of each other, two 8-bit
-    # sRGB colours are never more than about 30 codes apart.
-    maybe = np.flatnonzero(~out & (codes <= _DE_PREFILTER_CODES))
+    maybe = ~out if colors.shape[1] == 4 else ~out & (codes <= _DE_PREFILTER_CODES)
+    maybe = np.flatnonzero(maybe)
     # In chunks: in a photograph most colours pass the prefilter, and ΔE00
     # makes a dozen float64 temporaries per colour. ΔE00 only where the ΔE*ab
     # bound (see _DE76_BASE) allows a ΔE00 within the noise radius.
@@ -1035,7 +1039,7 @@ def _weighted_median(colors: NDArray[np.uint8], weights: NDArray[np.int64]) -> N
 
 
 def _nearest(
-    lab_a: NDArray[np.floating], lab_b: NDArray[np.float64], within: float | None = None, *, threads: bool = True
+    lab_a: NDArray[np.floating], lab_b: NDArray[np.float64], within: float | None = None
 ) -> tuple[NDArray[np.int32], NDArray[np.float64]]:
     """Nearest of ``lab_b`` for each of ``lab_a`` by CIEDE2000.
 
@@ -1076,7 +1080,7 @@ def _nearest(
         idx[s : s + chunk] = i_part
         dist[s : s + chunk] = d_part
 
-    for_each_chunk(run, n, chunk, threads=threads)
+    for_each_chunk(run, n, chunk, threads=False)  # its caller shares chunks between threads
     return idx, dist
 
 
@@ -1246,7 +1250,7 @@ def _noise_labels(
 def _noise_labels_part(
     ucolors: NDArray[np.uint8], ulab: NDArray[np.floating], colors: NDArray[np.uint8], plab: NDArray[np.float64]
 ) -> NDArray[np.int32]:
-    idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E, threads=False)  # runs in a worker already
+    idx, dist = _nearest(ulab, plab, within=NOISE_DELTA_E)
     labels = np.where(dist <= NOISE_DELTA_E, idx, np.int32(OTHER))
     del idx, dist
     # Within NOISE_CODES of a palette colour is its noise too (nearest in codes).

@@ -45,9 +45,9 @@ __all__ = [
 
 HEAT_TICKS_DEFAULT: Final[tuple[float, ...]] = (0.0, 1.0, 2.0, 3.0, 5.0, 10.0, 15.0, 20.0)
 """ΔE00 values labelled on a heat-map legend: 1 is about a just-noticeable
-difference (CIE 142-2001), 2-3 the tolerance range print buyers work with, 5 and
-10 the project's merge and 'clearly distinct' thresholds (common practice, see
-:mod:`inkshift.thresholds`), 15 and 20 to read large shifts."""
+difference (CIE 142-2001), 2-3 the tolerance range print buyers work with
+(3 is the project's shift threshold), 5 its merge threshold (common practice,
+see :mod:`inkshift.thresholds`), 10, 15 and 20 to read large shifts."""
 
 HEAT_L_RANGE: Final[tuple[float, float]] = (12.0, 94.0)
 """CIE L* at the two ends of the scale: dark but not black, light but not white

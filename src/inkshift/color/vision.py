@@ -7,10 +7,10 @@ Computer Graphics 15(6):1291-1298. The model reduces to one 3x3 matrix per
 deficiency and severity, applied to *linear* sRGB values (IEC 61966-2-1). The
 authors published those matrices for severities 0, 0.1, ..., 1; severities in
 between interpolate linearly between the two neighbouring published matrices,
-as their supplementary material does. The published table is read from
-colour-science (``colour.blindness.CVD_MATRICES_MACHADO2010``), an open
-reference library the project already depends on; it is imported on the first
-simulation only, because importing colour-science takes seconds.
+as their supplementary material does. The published table is shipped as data
+in :mod:`inkshift.color.machado2009` (the tests check it against
+colour-science's ``CVD_MATRICES_MACHADO2010``), so no simulation imports
+colour-science, which takes seconds.
 
 Severity 1 of protanomaly and deuteranomaly is protanopia and deuteranopia.
 For tritanomaly the authors shift the S-cone sensitivity instead of replacing
