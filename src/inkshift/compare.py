@@ -152,10 +152,23 @@ class CompareReport:
         }
 
 
+RANK_DELTA_E_DECIMALS = 2
+"""Decimals of the mean palette ΔE00 when ranking profiles: differences under
+0.01 ΔE00, a hundredth of a just-noticeable difference, count as a tie (common
+practice: 1 ΔE00 is about one JND)."""
+RANK_SHARE_DECIMALS = 4
+"""Decimals of the out-of-gamut share when ranking: 0.0001 of the image (0.01 %)
+counts as a tie (chosen by this project: a few hundred pixels of a report figure)."""
+
+
 def _rank_key(p: ProfileOutcome) -> tuple[int, float, float]:
     # Merges lose information outright, so they count first; then how far the
     # chart's own colours move; then how much of the image leaves the gamut.
-    return (p.merge_count, round(p.palette_delta_e_mean, 2), round(p.out_of_gamut_share, 4))
+    return (
+        p.merge_count,
+        round(p.palette_delta_e_mean, RANK_DELTA_E_DECIMALS),
+        round(p.out_of_gamut_share, RANK_SHARE_DECIMALS),
+    )
 
 
 def _verdict(ranked: list[ProfileOutcome]) -> str:

@@ -176,7 +176,6 @@ MAX_MOVES = 12
 one to three (measured on coated: 4, 13 and 36 moves for 4, 9 and 16 colours
 changed)."""
 
-_FIGURES = ("print", "gray", "vision")
 
 
 def parse_hex(text: str) -> NDArray[np.uint8]:

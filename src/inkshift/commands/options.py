@@ -13,7 +13,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from inkshift.errors import InputError
-from inkshift.icc.intent import INTENT_NAMES
+from inkshift.icc.intent import INTENT_NAMES, parse_intent
 from inkshift.thresholds import Thresholds
 
 __all__ = [
@@ -71,9 +71,8 @@ MaxPixelsOption = Annotated[Optional[int], typer.Option("--max-pixels", help="Re
 
 
 def check_intent(intent: str) -> None:
-    """Refuse an unknown rendering intent name before any work is done."""
-    if intent.lower() not in INTENT_CHOICES:
-        raise InputError(f"unknown rendering intent '{intent}'; use one of: {', '.join(INTENT_CHOICES)}")
+    """Refuse an unknown rendering intent name before any work is done (the library's own rule)."""
+    parse_intent(intent)
 
 
 def check_gamut(gamut: float) -> None:

@@ -16,6 +16,7 @@ from inkshift.commands.options import (
     IntentOption,
     JsonOption,
     ProfileOption,
+    check_gamut,
     check_intent,
 )
 from inkshift.errors import InputError
@@ -57,8 +58,9 @@ def ramp_command(
         gray_step_delta_l=defaults.gray_step_delta_l if gray_step_threshold is None else gray_step_threshold,
         reversal_delta_l=defaults.reversal_delta_l if reversal_tolerance is None else reversal_tolerance,
     )
+    check_gamut(gamut)
     for name, value in (("--step-threshold", limits.step_delta_e), ("--gray-step-threshold", limits.gray_step_delta_l),
-                        ("--reversal-tolerance", limits.reversal_delta_l), ("--gamut-tolerance", gamut)):
+                        ("--reversal-tolerance", limits.reversal_delta_l)):
         if not value >= 0:
             raise InputError(f"{name} must be 0 or more, got {value}")
     thresholds = Thresholds(out_of_gamut=gamut)

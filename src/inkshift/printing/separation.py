@@ -54,6 +54,9 @@ from inkshift.color.difference import delta_e_2000
 from inkshift.printing.neugebauer import HalftoneModel, device_to_lab, device_to_lab_jacobian
 
 __all__ = [
+    "NEUTRAL_BLACK_DE00",
+    "NEUTRAL_BLACK_STEP_L",
+    "NEUTRAL_BLACK_SEARCH_L",
     "BLACK_RULE_WEIGHT",
     "INK_WEIGHT",
     "SEED_STEPS",
@@ -79,6 +82,18 @@ SEED_STEPS = 6
 """Nodes per axis of the device grid the solver starts from (6^4 = 1296 before the ink limit)."""
 MAX_ITERATIONS = 40
 """Levenberg–Marquardt iterations at most; most targets stop far earlier."""
+NEUTRAL_BLACK_DE00 = 0.05
+"""ΔE00 within which the inverse must reach a neutral for it to count as
+reproduced when finding the darkest printable neutral: a twentieth of a
+just-noticeable difference, so the black point sits on a neutral the separation
+really prints (chosen by this project; 1 ΔE00 as one JND is common practice)."""
+NEUTRAL_BLACK_STEP_L = 0.05
+"""L* step of the search for the darkest printable neutral (chosen by this project,
+finer than the 16-bit Lab encoding matters for)."""
+NEUTRAL_BLACK_SEARCH_L = 30.0
+"""How far above the print black's L* that search looks (chosen by this project;
+on the shipped conditions the darkest neutral lies within a few L*)."""
+
 _STOP_STEP = 1e-5  # device-value change below which a target has converged (1e-5 ≈ 0.001 ΔE*ab)
 _BOUND_EPS = 1e-9
 
@@ -146,14 +161,15 @@ def print_black(model: HalftoneModel) -> tuple[NDArray[np.float64], NDArray[np.f
 def neutral_black(model: HalftoneModel) -> float:
     """Return the L* (media-relative) of the darkest neutral (a* = b* = 0) the condition reproduces.
 
-    Found by separating neutrals from the print black's L* upward in steps of 0.05 and keeping
-    the first that the inverse reaches within 0.05 CIEDE2000.
+    Found by separating neutrals from the print black's L* upward in steps of
+    :data:`NEUTRAL_BLACK_STEP_L` (at most :data:`NEUTRAL_BLACK_SEARCH_L` above it)
+    and keeping the first that the inverse reaches within :data:`NEUTRAL_BLACK_DE00`.
     """
     l_black = float(print_black(model)[1][0])
-    ls = np.arange(l_black, min(l_black + 30.0, 100.0), 0.05)
+    ls = np.arange(l_black, min(l_black + NEUTRAL_BLACK_SEARCH_L, 100.0), NEUTRAL_BLACK_STEP_L)
     lab = np.zeros((ls.size, 3))
     lab[:, 0] = ls
-    ok = separate(model, lab).delta_e <= 0.05
+    ok = separate(model, lab).delta_e <= NEUTRAL_BLACK_DE00
     return float(ls[np.argmax(ok)]) if ok.any() else l_black
 
 
