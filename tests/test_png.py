@@ -66,3 +66,20 @@ def test_heat_map_written_in_bands_equals_the_image(tmp_path):
     write_png_bands(tmp_path / "h.png", width, height, bands)
     with Image.open(tmp_path / "h.png") as im:
         assert np.array_equal(np.asarray(im), np.asarray(heatmap_overlay(rgb, de, oog)))
+
+
+def test_scalar_map_painted_per_colour_equals_the_per_pixel_map(tmp_path):
+    # compare's difference maps are painted once per unique colour from an
+    # IndexedImage; the per-pixel array path is the reference.
+    from inkshift.chart.unique import IndexedImage
+    from inkshift.report.heatmap import scalar_bands, scalar_map
+
+    rng = np.random.default_rng(6)
+    per_colour = rng.gamma(2.0, 3.0, 40)
+    index = rng.integers(0, 40, 70 * 90).astype(np.int32)
+    per_pixel = per_colour[index].reshape(70, 90)
+    kwargs = dict(title="difference", legend_label="dE00")
+    width, height, bands = scalar_bands(IndexedImage(per_colour, index, (70, 90)), **kwargs)
+    write_png_bands(tmp_path / "d.png", width, height, bands)
+    with Image.open(tmp_path / "d.png") as im:
+        assert np.array_equal(np.asarray(im), np.asarray(scalar_map(per_pixel, **kwargs)))

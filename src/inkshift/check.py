@@ -64,6 +64,7 @@ __all__ = [
     "write_check_outputs",
     "weighted_summary",
     "weighted_percentile",
+    "weighted_mean",
     "shipped_in_use",
     "assumed_srgb",
     "image_source",
@@ -204,18 +205,23 @@ def weighted_percentile(values: NDArray[np.float64], counts: NDArray[np.int64], 
 
 def weighted_summary(delta_e: NDArray[np.float64], out_of_gamut: NDArray[np.bool_], counts: NDArray[np.integer]) -> Summary:
     """Return per-pixel statistics from per-colour values weighted by pixel counts."""
-    total = weighted = outside = 0.0
-    for s in range(0, len(counts), _STATS_CHUNK):  # float64 counts of millions of colours are not needed at once
-        part = np.asarray(counts[s : s + _STATS_CHUNK], dtype=np.float64)
-        total += part.sum()
-        weighted += float(np.dot(delta_e[s : s + _STATS_CHUNK], part))
-        outside += part[out_of_gamut[s : s + _STATS_CHUNK]].sum()
     return Summary(
-        delta_e_mean=float(weighted / total),
+        delta_e_mean=weighted_mean(delta_e, counts),
         delta_e_p95=weighted_percentile(delta_e, counts, 0.95),
         delta_e_max=float(delta_e.max()),
-        out_of_gamut_share=float(outside / total),
+        out_of_gamut_share=weighted_mean(out_of_gamut, counts),
     )
+
+
+def weighted_mean(values: NDArray[np.floating | np.bool_], counts: NDArray[np.integer]) -> float:
+    """Return the per-pixel mean of per-colour ``values`` weighted by pixel ``counts``
+    (of a boolean flag: the share of pixels where it is set)."""
+    total = weighted = 0.0
+    for s in range(0, len(counts), _STATS_CHUNK):  # float64 counts of millions of colours are not needed at once
+        part = np.asarray(counts[s : s + _STATS_CHUNK], dtype=np.float64)
+        total += float(part.sum())
+        weighted += float(np.dot(np.asarray(values[s : s + _STATS_CHUNK], dtype=np.float64), part))
+    return weighted / total
 
 
 def pair_verdicts(

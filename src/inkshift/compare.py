@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass, field
+from functools import partial
 from itertools import combinations
 from pathlib import Path
 from typing import Any, Sequence
@@ -22,8 +23,9 @@ from PIL import Image
 
 from inkshift.cautions import cautions_for
 from inkshift.chart.load import load_chart
-from inkshift.chart.unique import expand
-from inkshift.check import assumed_srgb, check, shipped_in_use, weighted_percentile
+from inkshift.chart.unique import IndexedImage, pixel_runs
+from inkshift.chunks import for_each_chunk
+from inkshift.check import assumed_srgb, check, shipped_in_use, weighted_mean, weighted_percentile
 from inkshift.color.difference import delta_e_2000
 from inkshift.errors import InputError
 from inkshift.files import output_folder
@@ -237,13 +239,14 @@ def compare(
                 check=rep,
             )
         )
-    counts = outcomes[0].check.unique.counts.astype(np.float64)
+    counts = outcomes[0].check.unique.counts
     differences = []
     for a, b in combinations(outcomes, 2):
-        d = delta_e_2000(a.check.proof.print_lab, b.check.proof.print_lab)
-        p95 = weighted_percentile(d, counts, 0.95)
+        d = _print_difference(a.check.proof.print_lab, b.check.proof.print_lab)
         differences.append(
-            PrintDifference(a.name, b.name, float(np.dot(d, counts) / counts.sum()), p95, float(d.max()), d)
+            PrintDifference(
+                a.name, b.name, weighted_mean(d, counts), weighted_percentile(d, counts, 0.95), float(d.max()), d
+            )
         )
     ranked = sorted(outcomes, key=_rank_key)
     first = outcomes[0].check
@@ -265,6 +268,21 @@ def compare(
     )
 
 
+def _print_difference(lab_a: NDArray[np.floating], lab_b: NDArray[np.floating]) -> NDArray[np.float64]:
+    """ΔE00 between two prints of every unique colour, in chunks shared between threads
+    (a photograph has millions of colours; ΔE00 makes a dozen temporaries per colour)."""
+    out = np.empty(len(lab_a))
+
+    def run(s: int) -> None:
+        out[s : s + _DIFFERENCE_CHUNK] = delta_e_2000(lab_a[s : s + _DIFFERENCE_CHUNK], lab_b[s : s + _DIFFERENCE_CHUNK])
+
+    for_each_chunk(run, len(out), _DIFFERENCE_CHUNK)
+    return out
+
+
+_DIFFERENCE_CHUNK = 1 << 16  # colours per step of the print-to-print difference
+
+
 def default_compare_dir(image: str | Path) -> Path:
     """Return the default output folder of a comparison: beside the image."""
     path = Path(image)
@@ -273,21 +291,22 @@ def default_compare_dir(image: str | Path) -> Path:
 
 def write_compare_outputs(report: CompareReport, out_dir: str | Path) -> dict[str, Path]:
     """Write difference maps, the palette sheet and report.json atomically into ``out_dir``."""
-    from inkshift.report.images import Swatch, scalar_map, swatch_sheet
+    from inkshift.report.images import Swatch, scalar_bands, swatch_sheet, write_png_bands
 
     paths: dict[str, Path] = {}
     with output_folder(out_dir) as out:
-        inverse = report.profiles[0].check.unique.inverse
+        unique = report.profiles[0].check.unique
+        runs = pixel_runs(unique.inverse)
         for diff in report.differences:
             key = f"difference_{diff.a}_vs_{diff.b}"
             safe = "".join(ch if ch.isalnum() or ch in "-_" else "_" for ch in key)
-            per_pixel = expand(diff.values.astype(np.float32), inverse, report.pixels_shape)
-            img = scalar_map(
-                per_pixel,
+            # Painted once per colour and written band by band, as check's heat map.
+            width, height, bands = scalar_bands(
+                IndexedImage(diff.values, unique.inverse, report.pixels_shape, runs),
                 title=f"Where the prints differ: {diff.a} vs {diff.b}",
                 legend_label="ΔE00 between the two prints",
             )
-            paths[key] = out.image(f"{safe}.png", img)
+            paths[key] = out.file(f"{safe}.png", partial(write_png_bands, width=width, height=height, bands=bands))
         rows = []
         first = report.profiles[0].check
         rows.append(("screen", [

@@ -25,7 +25,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Iterator, Sequence
+from typing import Callable, Iterator, Sequence
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -51,6 +51,7 @@ from inkshift.report.sheets import (
 __all__ = [
     "heatmap_overlay",
     "heatmap_bands",
+    "scalar_bands",
     "scalar_map",
     "legend_strip",
     "HatchStyle",
@@ -220,11 +221,6 @@ def _levels(values: NDArray[np.floating], vmax: float) -> NDArray[np.uint32]:
     return idx.astype(np.uint32)
 
 
-def _band_image(packed: NDArray[np.uint32]) -> Image.Image:
-    h, w = packed.shape
-    return Image.frombuffer("RGB", (w, h), np.ascontiguousarray(packed), "raw", "RGBX", 0, 1)
-
-
 def _check_vmax(vmax: float, what: str, minimum: float | None = None) -> float:
     """Return ``vmax`` as float if finite and above 0 (or at least ``minimum``)."""
     try:
@@ -364,12 +360,6 @@ def legend_strip(
     return strip
 
 
-def _canvas_with_legend(height: int, width: int, legend: Image.Image) -> Image.Image:
-    canvas = Image.new("RGB", (max(width, legend.width), height + legend.height), BACKGROUND)
-    canvas.paste(legend, (0, height))
-    return canvas
-
-
 def heatmap_bands(
     screen_rgb: NDArray[np.uint8] | IndexedImage,
     delta_e: NDArray[np.floating] | IndexedImage,
@@ -429,7 +419,6 @@ def heatmap_bands(
         hatch=hatch,
         over_gray=page,
     )
-    width = max(w, legend.width)
     lut = _overlay_lut(vmax)
     per_color = None
     if all(isinstance(m, IndexedImage) for m in (screen_rgb, delta_e)) and screen_rgb.index is delta_e.index:
@@ -446,30 +435,22 @@ def heatmap_bands(
         release_freed_memory()  # the steps' temporaries, before the bands are drawn
         per_color = IndexedImage(painted, delta_e.index, (h, w), delta_e.runs)
 
-    def bands() -> Iterator[NDArray[np.uint8]]:
-        for y0, y1 in _bands(h, w):
-            if per_color is not None:
-                band = per_color[y0:y1]
-            else:
-                idx = _levels(delta_e[y0:y1], vmax)
-                idx <<= 8
-                idx += faded_gray(screen_rgb[y0:y1])
-                band = lut.take(idx)
-            oog = np.asarray(out_of_gamut[y0:y1], dtype=bool)
-            if oog.any():
-                dark, light = hatch.masks(y0, y1, w)
-                band[dark & oog] = _PACKED_DARK
-                band[light & oog] = _PACKED_LIGHT
-            rgb = band.view(np.uint8).reshape(y1 - y0, w, 4)[..., :3]
-            if width > w:  # a chart narrower than the legend: the page continues on the right
-                padded = np.empty((y1 - y0, width, 3), np.uint8)
-                padded[:, :w] = rgb
-                padded[:, w:] = BACKGROUND
-                rgb = padded
-            yield rgb
-        yield np.asarray(legend.convert("RGB"))
+    def packed(y0: int, y1: int) -> NDArray[np.uint32]:
+        if per_color is not None:
+            band = per_color[y0:y1]
+        else:
+            idx = _levels(delta_e[y0:y1], vmax)
+            idx <<= 8
+            idx += faded_gray(screen_rgb[y0:y1])
+            band = lut.take(idx)
+        oog = np.asarray(out_of_gamut[y0:y1], dtype=bool)
+        if oog.any():
+            dark, light = hatch.masks(y0, y1, w)
+            band[dark & oog] = _PACKED_DARK
+            band[light & oog] = _PACKED_LIGHT
+        return band
 
-    return width, h + legend.height, bands()
+    return _picture_bands(h, w, packed, legend)
 
 
 def heatmap_overlay(
@@ -485,50 +466,98 @@ def heatmap_overlay(
 
     The picture of :func:`heatmap_bands` (same parameters) as one Pillow image.
     """
-    width, height, bands = heatmap_bands(screen_rgb, delta_e, out_of_gamut, vmax=vmax, ticks=ticks, title=title)
-    canvas = Image.new("RGB", (width, height), BACKGROUND)
-    y = 0
-    for band in bands:
-        canvas.paste(Image.fromarray(np.ascontiguousarray(band), mode="RGB"), (0, y))
-        y += band.shape[0]
-    return canvas
+    return _gathered(*heatmap_bands(screen_rgb, delta_e, out_of_gamut, vmax=vmax, ticks=ticks, title=title))
 
 
-def scalar_map(
-    values: NDArray[np.floating],
+def scalar_bands(
+    values: NDArray[np.floating] | IndexedImage,
     *,
     vmax: float = HEATMAP_VMAX_DEFAULT,
     title: str,
     legend_label: str,
     ticks: Sequence[float] | None = None,
-) -> Image.Image:
-    """Return a map of ``values`` in the heat scale with the same legend as the heat map.
+) -> tuple[int, int, Iterator[NDArray[np.uint8]]]:
+    """Return (width, height, bands) of a map of ``values`` in the heat scale, with the heat map's legend.
 
     Parameters
     ----------
     values
-        (H, W) non-negative values, e.g. ΔE00 between two simulated prints; every
-        pixel is painted (no chart underneath), values above ``vmax`` take the
-        top colour, NaN and negatives the bottom one.
+        (H, W) non-negative values, e.g. ΔE00 between two simulated prints, as
+        an array or an :class:`~inkshift.chart.unique.IndexedImage` (painted
+        once per colour); every pixel is painted (no chart underneath), values
+        above ``vmax`` take the top colour, NaN and negatives the bottom one.
     vmax, title, legend_label, ticks
         Top of the scale, title line, name of the quantity, labelled values.
 
     Returns
     -------
-    PIL.Image.Image
-        RGB, the map in the top-left W x H pixels and the legend below.
+    width, height, bands
+        As :func:`heatmap_bands`: the map in the top-left W x H pixels and the
+        legend below, as (h, width, 3) uint8 bands made when read.
     """
     what = "scalar map"
     vmax = _check_vmax(vmax, what)
-    values = np.asarray(values)
+    values = as_pixel_map(values)
     if values.ndim != 2 or 0 in values.shape:
         raise InputError(f"{what}: expected an (H, W) array, got shape {values.shape}")
     if not (np.issubdtype(values.dtype, np.floating) or np.issubdtype(values.dtype, np.integer)):
         raise InputError(f"{what}: expected numbers, got {values.dtype}")
     h, w = values.shape
     legend = legend_strip(max(w, LEGEND_MIN_WIDTH), vmax=vmax, title=title, quantity=legend_label, ticks=ticks)
-    canvas = _canvas_with_legend(h, w, legend)
     lut = _heat_lut(vmax)
-    for y0, y1 in _bands(h, w):
-        canvas.paste(_band_image(lut.take(_levels(values[y0:y1], vmax))), (0, y0))
+    if isinstance(values, IndexedImage):
+        values = IndexedImage(lut.take(_levels(values.values, vmax)), values.index, (h, w), values.runs)
+
+        def packed(y0: int, y1: int) -> NDArray[np.uint32]:
+            return values[y0:y1]
+    else:
+
+        def packed(y0: int, y1: int) -> NDArray[np.uint32]:
+            return lut.take(_levels(values[y0:y1], vmax))
+
+    return _picture_bands(h, w, packed, legend)
+
+
+def scalar_map(
+    values: NDArray[np.floating] | IndexedImage,
+    *,
+    vmax: float = HEATMAP_VMAX_DEFAULT,
+    title: str,
+    legend_label: str,
+    ticks: Sequence[float] | None = None,
+) -> Image.Image:
+    """Return the picture of :func:`scalar_bands` (same parameters) as one Pillow image."""
+    return _gathered(*scalar_bands(values, vmax=vmax, title=title, legend_label=legend_label, ticks=ticks))
+
+
+def _picture_bands(
+    h: int, w: int, packed: Callable[[int, int], NDArray[np.uint32]], legend: Image.Image
+) -> tuple[int, int, Iterator[NDArray[np.uint8]]]:
+    """(width, height, bands) of a picture: ``packed(y0, y1)`` RGBX rows of the map, then ``legend``.
+
+    A map narrower than the legend continues as page background on the right.
+    """
+    width = max(w, legend.width)
+
+    def bands() -> Iterator[NDArray[np.uint8]]:
+        for y0, y1 in _bands(h, w):
+            rgb = packed(y0, y1).view(np.uint8).reshape(y1 - y0, w, 4)[..., :3]
+            if width > w:
+                padded = np.empty((y1 - y0, width, 3), np.uint8)
+                padded[:, :w] = rgb
+                padded[:, w:] = BACKGROUND
+                rgb = padded
+            yield rgb
+        yield np.asarray(legend.convert("RGB"))
+
+    return width, h + legend.height, bands()
+
+
+def _gathered(width: int, height: int, bands: Iterator[NDArray[np.uint8]]) -> Image.Image:
+    """One Pillow image of a picture given as bands (for callers that want it whole)."""
+    canvas = Image.new("RGB", (width, height), BACKGROUND)
+    y = 0
+    for band in bands:
+        canvas.paste(Image.fromarray(np.ascontiguousarray(band), mode="RGB"), (0, y))
+        y += band.shape[0]
     return canvas

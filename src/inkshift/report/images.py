@@ -5,7 +5,8 @@
 - :class:`Swatch`, :func:`side_by_side` and :func:`swatch_sheet` (in
   :mod:`inkshift.report.sheets`): previews and labelled swatch pairs.
 - Full-size pictures written to PNG band by band, never held whole:
-  :func:`heatmap_bands` (heat map) and :func:`rgb_bands` (any RGB map, in
+  :func:`heatmap_bands` (heat map), :func:`scalar_bands` (a map of values in
+  the heat scale) and :func:`rgb_bands` (any RGB map, in
   :mod:`inkshift.report.sheets`) give the bands, :func:`write_png_bands` (in
   :mod:`inkshift.report.png`) writes them.
 
@@ -22,6 +23,7 @@ from inkshift.report.heatmap import (
     heatmap_bands,
     heatmap_overlay,
     legend_strip,
+    scalar_bands,
     scalar_map,
 )
 from inkshift.report.png import write_png_bands
@@ -33,6 +35,7 @@ __all__ = [
     "rgb_bands",
     "write_png_bands",
     "scalar_map",
+    "scalar_bands",
     "legend_strip",
     "Swatch",
     "side_by_side",
