@@ -34,9 +34,9 @@ from inkshift.icc.cms import srgb_profile_bytes, transform_colors
 from inkshift.icc.evaluate import codes_to_lab, device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent
 from inkshift.icc.read import Profile, read_profile
-from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
+from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E, SRGB_GAMUT_DELTA_E
 
-__all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_profile", "lab_to_srgb8", "screen_srgb8", "ink_percent", "ink_recipes", "INK_NAMES", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
+__all__ = ["ColorProof", "proof_colors", "PixelProof", "proof_pixels", "srgb_profile", "lab_to_srgb8", "screen_srgb8", "srgb8_to_lab", "in_srgb", "ink_percent", "ink_recipes", "INK_NAMES", "print_view", "print_side", "PILLOW_MODES", "check_output_profile"]
 
 PILLOW_MODES: dict[str, str] = {"RGB": "RGB", "GRAY": "L", "CMYK": "CMYK"}
 """Pillow/LittleCMS buffer mode for each device colour space the proof handles."""
@@ -123,6 +123,18 @@ def lab_to_srgb8(lab: NDArray[np.float64]) -> NDArray[np.uint8]:
     """Return 8-bit sRGB showing CIELAB (D50) colours, clipped to the sRGB gamut."""
     rgb = lab_to_device(srgb_profile(), lab, Intent.RELATIVE)
     return np.clip(np.rint(rgb * 255.0), 0, 255).astype(np.uint8)
+
+
+def srgb8_to_lab(rgb: NDArray[np.uint8]) -> NDArray[np.float64]:
+    """Return CIELAB (D50) of 8-bit sRGB colours (the inverse view of :func:`lab_to_srgb8`)."""
+    return codes_to_lab(srgb_profile(), np.asarray(rgb, dtype=np.uint8), Intent.RELATIVE)
+
+
+def in_srgb(lab: NDArray[np.float64]) -> NDArray[np.bool_]:
+    """True where CIELAB colours lie inside sRGB, by :data:`inkshift.thresholds.SRGB_GAMUT_DELTA_E`."""
+    srgb = srgb_profile()
+    back = device_to_lab(srgb, lab_to_device(srgb, lab, Intent.RELATIVE), Intent.RELATIVE)
+    return delta_e_2000(lab, back) <= SRGB_GAMUT_DELTA_E
 
 
 def screen_srgb8(colors: NDArray[np.uint8], source: Profile) -> NDArray[np.uint8]:

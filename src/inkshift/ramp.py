@@ -40,10 +40,9 @@ from inkshift.chart.load import load_chart
 from inkshift.color.difference import delta_e_2000
 from inkshift.colorlist import ColorSpec, parse_named_color
 from inkshift.errors import ImageError, InputError, ProfileError
-from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import ColorProof, ink_recipes, lab_to_srgb8, proof_colors, screen_srgb8, srgb_profile
+from inkshift.proof import ColorProof, in_srgb, ink_recipes, lab_to_srgb8, proof_colors, screen_srgb8, srgb8_to_lab, srgb_profile
 from inkshift.readability import GRAY_PROFILE
 from inkshift.report.console import format_table
 from inkshift.report.model import ProfileInfo, rgb_hex
@@ -324,9 +323,9 @@ def ramp_input(colors: Sequence[str | ColorSpec] | NDArray[np.uint8], thresholds
         lab = np.array([specs[k].lab for k in lab_rows], dtype=np.float64)
         shown = lab_to_srgb8(lab)
         rgb[lab_rows] = shown
-        miss = delta_e_2000(lab, device_to_lab(srgb_profile(), shown / 255.0, Intent.RELATIVE))
-        for k, m, c in zip(lab_rows, miss, shown):
-            if m > thresholds.out_of_gamut:
+        miss = delta_e_2000(lab, srgb8_to_lab(shown))
+        for k, m, c, inside in zip(lab_rows, miss, shown, in_srgb(lab)):
+            if not inside:
                 notes.append(
                     f"{specs[k].text} lies outside sRGB ({m:.1f} ΔE00 away); the nearest sRGB "
                     f"colour {rgb_hex(c)} is used."

@@ -106,10 +106,9 @@ from inkshift.color.vision import simulate_cvd_lab
 from inkshift.errors import InputError, ProfileError
 from inkshift.files import output_folder
 from inkshift.icc.cms import srgb_profile_bytes
-from inkshift.icc.evaluate import device_to_lab
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import lab_to_srgb8, proof_colors, screen_srgb8, srgb_profile
+from inkshift.proof import lab_to_srgb8, proof_colors, screen_srgb8, srgb8_to_lab, srgb_profile
 from inkshift.readability import CHECKED_DEFICIENCIES, GRAY_MERGE_DELTA_L, GRAY_PROFILE
 from inkshift.report.model import CheckReport, ImageInfo, ProfileInfo, hex_rgb, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
@@ -567,7 +566,7 @@ def _match_locks(locks: Sequence[str], screen_lab: NDArray[np.float64], hexes: S
     if not locks:
         return locked
     rgb = np.array([parse_hex(s) for s in locks], np.uint8)
-    lab = _srgb_lab(rgb)
+    lab = srgb8_to_lab(rgb)
     for text, one_rgb, one_lab in zip(locks, rgb, lab):
         exact = [i for i, h in enumerate(hexes) if h == rgb_hex(one_rgb)]
         if exact:
@@ -579,10 +578,6 @@ def _match_locks(locks: Sequence[str], screen_lab: NDArray[np.float64], hexes: S
             raise InputError(f"locked colour {text} is not among the chart's colours ({', '.join(hexes)})")
         locked[i] = True
     return locked
-
-
-def _srgb_lab(rgb: NDArray[np.uint8]) -> NDArray[np.float64]:
-    return device_to_lab(srgb_profile(), np.asarray(rgb, np.uint8) / 255.0, Intent.RELATIVE)
 
 
 def suggest_replacements(

@@ -60,14 +60,25 @@ from inkshift.color.difference import delta_e_2000
 from inkshift.colorlist import ColorSpec
 from inkshift.errors import InputError
 from inkshift.icc.cms import lab_profile, srgb_profile_bytes, transform_colors
-from inkshift.icc.evaluate import device_to_lab, lab_to_device
+from inkshift.icc.evaluate import codes_to_lab, device_to_lab, lab_to_device
 from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
-from inkshift.proof import PILLOW_MODES, ColorProof, ink_recipes, lab_to_srgb8, print_side, print_view, proof_colors, srgb_profile
+from inkshift.proof import (
+    PILLOW_MODES,
+    ColorProof,
+    in_srgb,
+    ink_recipes,
+    lab_to_srgb8,
+    print_side,
+    print_view,
+    proof_colors,
+    srgb8_to_lab,
+    srgb_profile,
+)
 from inkshift.report.console import INTENT_WORDS, format_table
 from inkshift.report.model import ProfileInfo, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
-from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E
+from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E, SRGB_GAMUT_DELTA_E
 
 __all__ = [
     "SWATCHES_SCHEMA",
@@ -89,13 +100,6 @@ __all__ = [
 
 SWATCHES_SCHEMA = "inkshift.swatches/1"
 """Name and version of the swatches report's JSON schema."""
-
-SRGB_GAMUT_DELTA_E = 0.5
-"""A ``lab()`` colour counts as inside sRGB when rendering it in sRGB (clipped)
-and measuring back misses it by at most this ΔE00. The unclipped float round
-trip of the matrix/TRC sRGB profile is exact to rounding, so a larger miss
-comes from clipping. Common practice: half the ~1 ΔE00 just-noticeable
-difference (CIE 142-2001) is invisible on a screen."""
 
 PRINTABLE_SELF_DELTA_E = 1.0
 """A printable colour must come back from its own relative colorimetric round
@@ -339,11 +343,7 @@ def _print_of_srgb(
 ) -> tuple[NDArray[np.uint8], NDArray[np.float64]]:
     """Return (separation, print CIELAB) of 8-bit sRGB colours, as ``proof_colors`` makes them."""
     device = transform_colors(rgb, srgb_profile_bytes(), output, "RGB", PILLOW_MODES[output.color_space], intent, bpc)
-    return device, device_to_lab(output, device / 255.0, print_view(intent))
-
-
-def _screen_lab(rgb: NDArray[np.integer]) -> NDArray[np.float64]:
-    return device_to_lab(srgb_profile(), np.asarray(rgb) / 255.0, Intent.RELATIVE)
+    return device, codes_to_lab(output, device, print_view(intent))
 
 
 def nearest_printable(
@@ -391,7 +391,7 @@ def nearest_printable(
     best_device, best_lab = _print_of_srgb(center.astype(np.uint8), output, intent, bpc)
     best_device = np.array(best_device)  # LittleCMS output arrays are read-only views
     best_de = delta_e_2000(best_lab, target).reshape(n)
-    best_cost = best_de + NEAREST_SCREEN_WEIGHT * delta_e_2000(_screen_lab(center), target).reshape(n)
+    best_cost = best_de + NEAREST_SCREEN_WEIGHT * delta_e_2000(srgb8_to_lab(center), target).reshape(n)
     for scale in NEAREST_SEARCH_SCALES:
         active = np.ones(n, bool)
         for _ in range(NEAREST_SEARCH_STEPS):
@@ -404,7 +404,7 @@ def nearest_printable(
             device, lab = _print_of_srgb(rgb, output, intent, bpc)
             inverse = uniq.inverse.reshape(cand.shape[:2])
             de = delta_e_2000(lab[inverse], target[idx, None, :])
-            cost = de + NEAREST_SCREEN_WEIGHT * delta_e_2000(_screen_lab(rgb)[inverse], target[idx, None, :])
+            cost = de + NEAREST_SCREEN_WEIGHT * delta_e_2000(srgb8_to_lab(rgb)[inverse], target[idx, None, :])
             pick = np.argmin(cost, axis=1)
             rows = np.arange(idx.size)
             better = cost[rows, pick] < best_cost[idx]
@@ -415,12 +415,6 @@ def nearest_printable(
             best_device[moved] = device[inverse[better, pick[better]]]
             active[idx[~better]] = False
     return center.astype(np.uint8), best_device, best_de
-
-
-def _in_srgb(lab: NDArray[np.float64]) -> NDArray[np.bool_]:
-    srgb = srgb_profile()
-    back = device_to_lab(srgb, lab_to_device(srgb, lab, Intent.RELATIVE), Intent.RELATIVE)
-    return delta_e_2000(lab, back) <= SRGB_GAMUT_DELTA_E
 
 
 def _coverage(ink: dict[str, float], space: str) -> float:
@@ -479,10 +473,10 @@ def check_swatches(
     lab_in = np.array([c.lab for c in colors if c.kind == "lab"], np.float64).reshape(-1, 3)
     screen_rgb = np.empty((len(colors), 3), np.uint8)
     screen_rgb[is_rgb] = rgb_in
-    in_srgb = np.ones(len(colors), bool)
+    inside_srgb = np.ones(len(colors), bool)
     if lab_in.size:
         screen_rgb[~is_rgb] = lab_to_srgb8(lab_in)
-        in_srgb[~is_rgb] = _in_srgb(lab_in)
+        inside_srgb[~is_rgb] = in_srgb(lab_in)
 
     results: list[SwatchResult] = []
     for output, info in opened:
@@ -520,7 +514,7 @@ def check_swatches(
                     input=c.text,
                     kind=c.kind,
                     hex=rgb_hex(screen_rgb[k]),
-                    in_srgb=bool(in_srgb[k]),
+                    in_srgb=bool(inside_srgb[k]),
                     profile=info.name,
                     screen_lab=_t3(screen_lab[k]),
                     print_lab=_t3(print_lab[k]),
@@ -544,7 +538,7 @@ def check_swatches(
             "lab() colours are separated by LittleCMS from 8-bit CIELAB (L* in steps of 0.39, "
             "a* and b* in whole units); their screen and print colours are computed exactly."
         )
-        if not in_srgb.all():
+        if not inside_srgb.all():
             notes.append("Some lab() colours lie outside sRGB: their screen hex is the nearest sRGB can show.")
     infos = [info for _, info in opened]
     return SwatchReport(

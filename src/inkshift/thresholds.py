@@ -17,6 +17,7 @@ __all__ = [
     "MERGE_DELTA_E",
     "SEPARATION_LOSS_RATIO",
     "OUT_OF_GAMUT_DELTA_E",
+    "SRGB_GAMUT_DELTA_E",
     "Thresholds",
 ]
 
@@ -47,6 +48,14 @@ OUT_OF_GAMUT_DELTA_E = 2.0
 the output profile misses by more than this ΔE00 is out of gamut. Common
 practice: twice the JND leaves room for the profile's own table precision
 (the shipped profiles round-trip in-gamut colours at p95 <= 1 ΔE00)."""
+
+
+SRGB_GAMUT_DELTA_E = 0.5
+"""A ``lab()`` colour counts as inside sRGB when rendering it in sRGB (clipped)
+and measuring back misses it by at most this ΔE00. The unclipped float round
+trip of the matrix/TRC sRGB profile is exact to rounding, so a larger miss
+comes from clipping. Common practice: half the ~1 ΔE00 just-noticeable
+difference (CIE 142-2001) is invisible on a screen."""
 
 
 @dataclass(frozen=True)
