@@ -44,7 +44,7 @@ from inkshift.icc.intent import Intent, parse_intent
 from inkshift.icc.read import Profile
 from inkshift.proof import ColorProof, in_srgb, ink_recipes, lab_to_srgb8, proof_colors, screen_srgb8, srgb8_to_lab, srgb_profile
 from inkshift.readability import GRAY_PROFILE
-from inkshift.report.console import format_table
+from inkshift.report.console import closing_lines, format_table, intent_line
 from inkshift.report.model import ProfileInfo, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
 from inkshift.thresholds import Thresholds
@@ -649,7 +649,7 @@ def format_ramp(report: RampReport) -> str:
         f"(source profile: {report.source_profile})",
         f"Printer:  {report.output_profile.name}  ({report.output_profile.description})",
         f"Gray:     {report.gray_profile.name}  ({report.gray_profile.description})",
-        f"Intent:   {report.intent}, black point compensation {'on' if report.bpc else 'off'}",
+        intent_line(report.intent, report.bpc),
         f"Runs:     {report.direction}" + (f", middle at step {report.middle}" if report.middle is not None else ""),
     ]
     lines += [f"Note:     {n}" for n in report.notes]
@@ -678,7 +678,5 @@ def format_ramp(report: RampReport) -> str:
         lines.append(f"Verdict:  FAIL: the scale loses its order or its steps {', '.join(words)}{already}.")
     else:
         lines.append("Verdict:  pass: the scale keeps its order and distinguishable steps on screen, in print and in gray.")
-    lines.append("")
-    lines.append("Cautions:")
-    lines.extend(f"  - {c}" for c in report.cautions)
+    lines.extend(closing_lines({}, report.cautions))
     return "\n".join(lines)

@@ -883,7 +883,7 @@ def _marks(c: Replacement, *, original: bool) -> tuple[str, ...]:
 
 def format_replace(result: ReplaceReport) -> str:
     """Return the console summary: original -> replacement table, figures before/after, outputs, cautions."""
-    from inkshift.report.console import format_table
+    from inkshift.report.console import closing_lines, format_table
 
     img, prof = result.image, result.output_profile
     lines = [
@@ -914,13 +914,7 @@ def format_replace(result: ReplaceReport) -> str:
                                                    [False, False, True, True, True]))
     for note in result.notes:
         lines.append(f"Note: {note}")
-    if result.outputs:
-        lines.append("")
-        lines.append("Written:")
-        lines.extend(f"  {key:<9} {path}" for key, path in result.outputs.items())
-    lines.append("")
-    lines.append("Cautions:")
-    lines.extend(f"  - {c}" for c in result.cautions)
+    lines.extend(closing_lines(result.outputs, result.cautions))
     return "\n".join(lines)
 
 

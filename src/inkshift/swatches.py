@@ -75,7 +75,7 @@ from inkshift.proof import (
     srgb8_to_lab,
     srgb_profile,
 )
-from inkshift.report.console import INTENT_WORDS, format_table
+from inkshift.report.console import closing_lines, format_table, intent_line
 from inkshift.report.model import ProfileInfo, rgb_hex
 from inkshift.shipped import DEFAULT_PROFILE
 from inkshift.thresholds import OUT_OF_GAMUT_DELTA_E, SRGB_GAMUT_DELTA_E
@@ -555,8 +555,7 @@ def check_swatches(
 def format_swatches(report: SwatchReport) -> str:
     """Return the console text of a swatches report: one table per profile, then notes and cautions."""
     lines = [
-        f"Intent:   {INTENT_WORDS.get(report.intent, report.intent)}, black point compensation "
-        f"{'on' if report.bpc else 'off'}",
+        intent_line(report.intent, report.bpc),
     ]
     for info in report.profiles:
         rows_in = report.for_profile(info.name)
@@ -592,7 +591,5 @@ def format_swatches(report: SwatchReport) -> str:
     if report.notes:
         lines.append("")
         lines.extend(f"Note:     {n}" for n in report.notes)
-    lines.append("")
-    lines.append("Cautions:")
-    lines.extend(f"  - {c}" for c in report.cautions)
+    lines.extend(closing_lines({}, report.cautions))
     return "\n".join(lines)

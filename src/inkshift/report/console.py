@@ -9,7 +9,7 @@ from inkshift.report.model import CheckReport, PairVerdict
 if TYPE_CHECKING:
     from inkshift.compare import CompareReport
 
-__all__ = ["format_check", "format_compare", "format_table", "format_pairs", "more_line", "MAX_LISTED_PAIRS"]
+__all__ = ["format_check", "format_compare", "format_table", "format_pairs", "more_line", "intent_line", "closing_lines", "MAX_LISTED_PAIRS"]
 
 INTENT_WORDS = {
     "perceptual": "perceptual",
@@ -17,6 +17,21 @@ INTENT_WORDS = {
     "saturation": "saturation",
     "absolute": "ICC-absolute colorimetric",
 }
+
+
+
+def intent_line(intent: str, bpc: bool, extra: str = "") -> str:
+    """The "Intent:" line every command prints: intent in words, black point compensation, ``extra``."""
+    return f"Intent:   {INTENT_WORDS.get(intent, intent)}, black point compensation {'on' if bpc else 'off'}{extra}"
+
+
+def closing_lines(outputs: dict[str, str], cautions: Sequence[str]) -> list[str]:
+    """The end every command prints: the files written (if any), then the cautions."""
+    lines: list[str] = []
+    if outputs:
+        width = max(len(k) for k in outputs)
+        lines += ["", "Written:"] + [f"  {key:<{width}}  {path}" for key, path in outputs.items()]
+    return lines + ["", "Cautions:"] + [f"  - {c}" for c in cautions]
 
 
 def format_table(headers: Sequence[str], rows: Sequence[Sequence[str]], right: Sequence[bool] | None = None) -> list[str]:
@@ -66,8 +81,7 @@ def format_check(report: CheckReport) -> str:
         f"Chart:    {img.path or '(in memory)'}  {img.width} x {img.height} px, {img.color_space}, "
         f"source profile: {img.source_profile}",
         f"Printer:  {prof.name}  ({prof.description})",
-        f"Intent:   {INTENT_WORDS.get(report.intent, report.intent)}, black point compensation "
-        f"{'on' if report.bpc else 'off'}{', print shown on its paper' if report.paper else ''}",
+        intent_line(report.intent, report.bpc, ", print shown on its paper" if report.paper else ""),
         "",
         f"Pixels:   ΔE00 mean {s.delta_e_mean:.2f}, 95th percentile {s.delta_e_p95:.2f}, "
         f"max {s.delta_e_max:.2f}; out of gamut: {100 * s.out_of_gamut_share:.1f} % of the image",
@@ -113,14 +127,7 @@ def format_check(report: CheckReport) -> str:
     if report.vision is not None:
         lines.append("")
         lines.extend(format_vision(report.vision, t.merge))
-    if report.outputs:
-        lines.append("")
-        lines.append("Written:")
-        for key, path in report.outputs.items():
-            lines.append(f"  {key:13s} {path}")
-    lines.append("")
-    lines.append("Cautions:")
-    lines.extend(f"  - {c}" for c in report.cautions)
+    lines.extend(closing_lines(report.outputs, report.cautions))
     return "\n".join(lines)
 
 
@@ -131,8 +138,7 @@ def format_compare(report: "CompareReport") -> str:
     img = report.image
     lines = [
         f"Chart:    {img.path or '(in memory)'}  {img.width} x {img.height} px, source profile: {img.source_profile}",
-        f"Intent:   {INTENT_WORDS.get(report.intent, report.intent)}, black point compensation "
-        f"{'on' if report.bpc else 'off'}{', prints measured on their paper' if report.paper else ''}",
+        intent_line(report.intent, report.bpc, ", prints measured on their paper" if report.paper else ""),
         "",
         "Printers",
     ]
@@ -181,12 +187,5 @@ def format_compare(report: "CompareReport") -> str:
             lines.append(f"  {d.a} vs {d.b}: ΔE00 mean {d.delta_e_mean:.2f}, p95 {d.delta_e_p95:.2f}, max {d.delta_e_max:.2f}")
     lines.append("")
     lines.append("Verdict: " + report.verdict)
-    if report.outputs:
-        lines.append("")
-        lines.append("Written:")
-        for key, path in report.outputs.items():
-            lines.append(f"  {path}")
-    lines.append("")
-    lines.append("Cautions:")
-    lines.extend(f"  - {c}" for c in report.cautions)
+    lines.extend(closing_lines(report.outputs, report.cautions))
     return "\n".join(lines)
